@@ -1,0 +1,3 @@
+module sizebudget
+
+go 1.26
