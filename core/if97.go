@@ -7,13 +7,13 @@ import (
 
 // Limits of IAPWS-IF97 region 1 (compressed liquid) and region 4 (saturation line).
 const (
-	if97MinTemperature    = 273.15  // K, lower limit of regions 1 and 4
-	if97Region1MaxT       = 623.15  // K, upper limit of region 1
-	if97Region1MaxP       = 100     // MPa, upper limit of region 1
-	if97CriticalT         = 647.096 // K, upper limit of region 4
-	if97CriticalP         = 22.064  // MPa, upper limit of region 4
-	if97Region1PStar      = 16.53   // MPa, reducing pressure of region 1
-	if97Region1TStar      = 1386    // K, reducing temperature of region 1
+	if97MinTemperature    = 273.15   // K, lower limit of regions 1 and 4
+	if97Region1MaxT       = 623.15   // K, upper limit of region 1
+	if97Region1MaxP       = 100      // MPa, upper limit of region 1
+	if97CriticalT         = 647.096  // K, upper limit of region 4
+	if97CriticalP         = 22.064   // MPa, upper limit of region 4
+	if97Region1PStar      = 16.53    // MPa, reducing pressure of region 1
+	if97Region1TStar      = 1386     // K, reducing temperature of region 1
 	if97SpecificGasConstR = 0.461526 // kJ/(kg·K), specific gas constant of ordinary water in IF97
 )
 
