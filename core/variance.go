@@ -100,16 +100,16 @@ func VarKnownNoiseExact(D, interval, blur, s2 float64, N, dims int) float64 {
 }
 
 // PooledVariance returns the variance of the displacement-weighted mean of independent per-track
-// estimates, Σ_i w_i·D̂_i with w_i = N_i/ΣN, where lengths[i] = N_i is the number of displacements of
-// track i and variance(N) the variance of one track's estimate:
+// estimates, Σ_i w_i·D̂_i with w_i = N_i/ΣN, where lengths[i] = N_i is the number of displacements (per
+// axis) of track i and variance(N) the variance of one track's estimate:
 //
 //	Var = Σ_i w_i²·variance(N_i),   w_i = N_i / Σ_j N_j
 //
-// For M tracks of equal length this is variance(N)/M. The known-noise estimator pooled over all
-// displacements is exactly this weighted mean, so PooledVariance with VarKnownNoiseExact is exact. A
-// CVE pooled by summing squares over ΣN_i and lag-1 products over Σ(N_i − 1) weights its second term
-// slightly differently from w_i; use VarCVEPooledExact for it. PooledVariance panics if lengths is
-// empty or holds a length < 1.
+// For M tracks of equal length this is variance(N)/M. CVE and KnownNoise pool tracks by exactly this
+// weighted mean, so PooledVariance with VarCVEExact or VarKnownNoiseExact is their exact variance (for
+// KnownNoise the weighted mean is also the estimate from the pooled sum of squares). The variances here
+// are those of the estimators without drift removal. PooledVariance panics if lengths is empty or
+// holds a length < 1.
 func PooledVariance(lengths []int, variance func(N int) float64) float64 {
 	if len(lengths) == 0 {
 		panic("core: PooledVariance: no tracks")
@@ -127,40 +127,6 @@ func PooledVariance(lengths []int, variance func(N int) float64) float64 {
 		v += w * w * variance(n)
 	}
 	return v
-}
-
-// VarCVEPooledExact returns the exact variance, in (m²/s)², of the CVE pooled over independent tracks
-// with lengths[i] ≥ 2 displacements per axis, averaged over dims axes: squares summed over all
-// P = ΣN_i displacements, lag-1 products over all L = Σ(N_i − 1) within-track pairs,
-//
-//	D̂ = Σ_i Σ_k dx_{ik}²/(2PΔt) + Σ_i Σ_k dx_{ik}·dx_{i,k+1}/(LΔt)
-//
-// It is a block-diagonal quadratic form with tridiagonal Toeplitz blocks Q_i = tridiag(1/(2LΔt),
-// 1/(2PΔt), 1/(2LΔt)), so Var = Σ_i 2·tr(Q_iΣQ_iΣ)/dims exactly, each block summed in closed form as in
-// VarCVEExact. For a single track it equals VarCVEExact. Valid for the same model range as
-// VarCVEExact; it panics if lengths is empty or holds a length < 2.
-//
-// References:
-//   - Vestergaard C.L., Blainey P.C., Flyvbjerg H. (2014) Optimal estimation of diffusion coefficients
-//     from single-particle trajectories. Phys. Rev. E 89, 022726.
-func VarCVEPooledExact(D, interval, blur, s2 float64, lengths []int, dims int) float64 {
-	mustModel("VarCVEPooledExact", D, interval, blur, s2)
-	if len(lengths) == 0 {
-		panic("core: VarCVEPooledExact: no tracks")
-	}
-	P, L := 0, 0
-	for _, n := range lengths {
-		mustCount("VarCVEPooledExact", n, 2, dims)
-		P += n
-		L += n - 1
-	}
-	q := StepCovariance{Diag: 1 / (2 * float64(P) * interval), Off: 1 / (2 * float64(L) * interval)}
-	s := NewStepCovariance(D, interval, blur, s2)
-	v := 0.0
-	for _, n := range lengths {
-		v += tridiagQuadVar(q, s, n)
-	}
-	return v / float64(dims)
 }
 
 // QianRelVar returns the relative variance Var(MSD_n)/E[MSD_n]² of the time-averaged mean squared
