@@ -37,6 +37,7 @@ func simCheck(t *testing.T, name string, s *simAcc, want float64) {
 		t.Fatalf("%s: only %d samples", name, s.n)
 	}
 	m, se := s.mean(), s.se()
+	t.Logf("%s: %.6g vs %.6g (%+.2f SE, SE %.3g, n %d)", name, m, want, (m-want)/se, se, s.n)
 	if math.Abs(m-want) > 4*se {
 		t.Errorf("%s: sample mean %.6g, want %.6g (|diff| = %.2f standard errors, SE %.3g, n %d)",
 			name, m, want, math.Abs(m-want)/se, se, s.n)
