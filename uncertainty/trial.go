@@ -1,0 +1,185 @@
+package uncertainty
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+
+	"sizebudget/core"
+)
+
+// Engines that sample the track statistics of a trial.
+const (
+	EngineDirect   = "direct"   // simulate every track, then estimate (any estimator, drift removal)
+	EngineSpectral = "spectral" // exact DST-I sampler: one gamma draw per mode (cve, known-noise; no drift removal)
+)
+
+// TrialSpec names one Monte Carlo evaluation of a scenario: the scenario with its frames and tracks
+// (which the planner varies) and the engine. It is plain data, so a browser worker can rebuild the
+// same Model from it (TrialModel) and compute any of its chunks.
+type TrialSpec struct {
+	Scenario Scenario `json:"scenario"`
+	Frames   int      `json:"frames"`
+	Tracks   int      `json:"tracks"`
+	Engine   string   `json:"engine"` // "" = the fastest exact engine for the scenario
+}
+
+// BestEngine returns the fastest engine that is exact for the scenario: spectral for the
+// covariance-based and known-noise estimators without drift removal, direct otherwise.
+func BestEngine(s Scenario) string {
+	if (s.Estimator == "cve" || s.Estimator == "known-noise") && !(s.DriftRemoved && s.DriftUMPerS > 0) {
+		return EngineSpectral
+	}
+	return EngineDirect
+}
+
+// TrialModel returns the Monte Carlo measurement model of a planned measurement, in nm, and the engine
+// it uses. Each trial plays one whole experiment as it will really happen:
+//
+//	T ~ rect(T₀ ± a) or N(T₀, u_T);  η = η_medium(T)·(1 + u_η·Z₁);  δ = u_pix·Z₂
+//	D = k_B·T/(6π·η·r₀)                 (the particle's true diffusion coefficient)
+//	D̂ = estimator(tracks simulated at D, with noise, blur and a drift of speed ~ U(0, v) in a random direction)
+//	D̂_a = D̂/(1 + δ)²                    (the analyst's pixel size is off by δ)
+//	r̂ = k_B·T₀/(6π·η_medium(T₀)·D̂_a)    (converted with the nominal temperature and viscosity)
+//	y = r₀²/r̂ = r₀·D̂_a/D₀
+//
+// r̂/r₀ is (to first order in the noise level, exactly without it) a pivot whose law does not depend on
+// r₀, so y is distributed as the true radius given a measurement whose estimate equals r₀: its coverage
+// interval is the one to report (JCGM 101 5.3).
+func TrialModel(spec TrialSpec) (Model, string, error) {
+	s := spec.Scenario
+	if spec.Frames != 0 {
+		s.Frames = spec.Frames
+	}
+	if spec.Tracks != 0 {
+		s.Tracks = spec.Tracks
+	}
+	if err := s.Validate(); err != nil {
+		return nil, "", err
+	}
+	u, err := newSetup(s)
+	if err != nil {
+		return nil, "", err
+	}
+	engine := spec.Engine
+	if engine == "" {
+		engine = BestEngine(s)
+	}
+	switch engine {
+	case EngineSpectral:
+		if BestEngine(s) != EngineSpectral {
+			return nil, "", &FieldError{Field: "engine", Value: engine, Allowed: `"direct" for this estimator and drift setting`}
+		}
+	case EngineDirect:
+	default:
+		return nil, "", &FieldError{Field: "engine", Value: engine, Allowed: `"", "direct" or "spectral"`}
+	}
+	estimate, err := u.estimator(engine)
+	if err != nil {
+		return nil, "", err
+	}
+	rnm := u.r0 * 1e9
+	m := func(r *rand.Rand, y []float64) {
+		drift := make([]float64, u.dims)
+		for i := range y {
+			T := u.drawTemperature(r)
+			eta, err := u.medium.Viscosity(T)
+			if err != nil {
+				// Validate keeps every drawn temperature inside the medium's range.
+				panic(fmt.Sprintf("uncertainty: viscosity at a drawn temperature: %v", err))
+			}
+			eta *= 1 + u.uEta*clampNormal(r)
+			delta := u.uPix * clampNormal(r)
+			D := core.Boltzmann * T / (6 * math.Pi * eta * u.r0)
+			d := u.drawDrift(r, drift)
+			Dhat := estimate(r, D, d)
+			Da := Dhat / ((1 + delta) * (1 + delta))
+			y[i] = rnm * Da / u.D0
+		}
+	}
+	return m, engine, nil
+}
+
+// estimator returns the sampler of D̂ for the engine: given the true D and the drift velocity (m/s per
+// axis, nil = none), one pooled estimate from u.tracks tracks of u.frames positions.
+func (u *setup) estimator(engine string) (func(r *rand.Rand, D float64, drift []float64) float64, error) {
+	N := u.frames - 1
+	if engine == EngineSpectral {
+		var form core.QuadraticForm
+		if u.s.Estimator == "known-noise" {
+			form = core.KnownNoiseForm(u.dt, u.blur, u.s2, N)
+		} else {
+			form = core.CVEForm(u.dt, N)
+		}
+		sp := core.NewSpectral(form, u.dt, u.blur, u.s2, N, u.tracks, u.dims)
+		return sp.Sample, nil
+	}
+	lags := 0
+	if u.s.Estimator == "msd" {
+		lags = u.msdLags(u.frames)
+	}
+	sigma := math.Sqrt(u.s2)
+	removeDrift := u.s.DriftRemoved
+	return func(r *rand.Rand, D float64, drift []float64) float64 {
+		rec := core.Recording{D: D, Dims: u.dims, Interval: u.dt, Exposure: u.tE, Sigma: sigma, Drift: drift}
+		tracks := make([]core.Track, u.tracks)
+		src := randSource{r}
+		for j := range tracks {
+			tracks[j] = core.Simulate(src, rec, u.frames)
+		}
+		var e core.Estimate
+		var err error
+		switch u.s.Estimator {
+		case "known-noise":
+			e, err = core.KnownNoise(tracks, u.dt, u.blur, u.s2, removeDrift)
+		case "msd":
+			e, err = core.MSDFit(tracks, u.dt, u.blur, lags)
+		default:
+			e, err = core.CVE(tracks, u.dt, u.blur, removeDrift)
+		}
+		if err != nil {
+			panic("uncertainty: estimator on simulated tracks: " + err.Error())
+		}
+		return e.D
+	}, nil
+}
+
+// drawTemperature draws the true temperature (K).
+func (u *setup) drawTemperature(r *rand.Rand) float64 {
+	if u.uT == 0 {
+		return u.T0
+	}
+	if u.s.TemperatureDist == "normal" {
+		return u.T0 + u.uT*clampNormal(r)
+	}
+	return u.T0 + u.s.TemperatureUK*(2*r.Float64()-1)
+}
+
+// drawDrift fills v with a drift velocity of speed ~ U(0, v_max) in a direction uniform over the
+// tracked axes, or returns nil when there is no residual drift.
+func (u *setup) drawDrift(r *rand.Rand, v []float64) []float64 {
+	if u.drift == 0 {
+		return nil
+	}
+	norm := 0.0
+	for a := range v {
+		v[a] = r.NormFloat64()
+		norm += v[a] * v[a]
+	}
+	speed := u.drift * r.Float64() / math.Sqrt(norm)
+	for a := range v {
+		v[a] *= speed
+	}
+	return v
+}
+
+// clampNormal draws a standard normal variate clamped to ±5 (probability 6e-7 of clamping), so that
+// drawn temperatures stay within the range Validate checked and factors 1 + u·Z stay positive.
+func clampNormal(r *rand.Rand) float64 {
+	return math.Max(-5, math.Min(5, r.NormFloat64()))
+}
+
+// randSource adapts a *rand.Rand to the rand.Source the core simulator takes.
+type randSource struct{ r *rand.Rand }
+
+func (s randSource) Uint64() uint64 { return s.r.Uint64() }
