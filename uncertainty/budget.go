@@ -52,10 +52,14 @@ type Budget struct {
 	IntervalNM   [2]float64 `json:"interval_nm"`                   // r(1 ± k·u_c/r)
 }
 
-// budget evaluates the GUM budget at the given frames and tracks.
-func (u *setup) budget(frames, tracks int) Budget {
+// budget evaluates the GUM budget for tracks grouped by length.
+func (u *setup) budget(groups []LengthGroup) Budget {
 	var src []Source
-	tv := u.trackRelVar(frames, tracks)
+	tv := u.trackRelVar(groups)
+	frames := 0
+	for _, g := range groups {
+		frames = max(frames, g.Frames)
+	}
 	src = append(src, Source{Source: "tracks", Input: "relative error of D̂", InputU: math.Sqrt(tv), Sensitivity: -1,
 		DOF: DOF(2 / tv), ShrinksFrames: true})
 	if u.uT > 0 {

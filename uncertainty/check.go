@@ -77,12 +77,12 @@ func Check(ctx context.Context, s Scenario, opt PlanOptions) (*CheckResult, erro
 		k = distuv.UnitNormal.Quantile((1 + p) / 2)
 	}
 	zp := distuv.UnitNormal.Quantile((1 + s.Coverage) / 2)
-	b := u.budget(u.frames, u.tracks)
+	b := u.budget(u.groups)
 	fixed := b.fixedRelVar()
 	c := &CheckResult{Format: CheckFormat, Coverage: s.Coverage, ReportedRadius: s.ReportedRadiusNM, ReportedU: s.ReportedUNM, ReportedK: k,
 		ReportedRelU:   s.ReportedUNM / k * zp / s.ReportedRadiusNM,
 		AchievableRelU: pr.RelExpanded,
-		BoundRelU:      zp * math.Sqrt(u.boundRelVar(u.frames, u.tracks)+fixed),
+		BoundRelU:      zp * math.Sqrt(u.boundRelVar(u.groups)+fixed),
 		FixedRelU:      zp * math.Sqrt(fixed),
 		Plan:           pr}
 	pct := func(x float64) string { return fmt.Sprintf("%.3g %%", 100*x) }

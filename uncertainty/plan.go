@@ -134,10 +134,10 @@ func Plan(ctx context.Context, s Scenario, opt PlanOptions) (*PlanResult, error)
 		ViscosityMPaS: u.eta0 * 1e3, TemperatureK: u.T0, Coverage: u.p, Epsilon: u.epsilon(), Blur: u.blur,
 		TargetRelU: s.TargetRelU, Warnings: []string{}}
 
-	b := u.budget(u.frames, u.tracks)
+	b := u.budget(u.groups)
 	res.Budget = b.Sources
 	res.DominantSource = dominant(b)
-	mc, engine, err := runMC(ctx, s, u.frames, u.tracks, s.Trials, opt, pr)
+	mc, engine, err := runMC(ctx, s, 0, 0, s.Trials, opt, pr)
 	if err != nil {
 		return nil, err
 	}
@@ -155,6 +155,10 @@ func Plan(ctx context.Context, s Scenario, opt PlanOptions) (*PlanResult, error)
 	res.Histogram = histogram(mc.Values, mc.Low, mc.High, 40)
 	res.Warnings = append(res.Warnings, u.warnings(res)...)
 
+	if len(s.TrackLengths) > 0 && !opt.NoPlanner {
+		res.Warnings = append(res.Warnings, "planner: skipped, the scenario gives recorded track lengths")
+		opt.NoPlanner = true
+	}
 	if !opt.NoPlanner {
 		if err := u.plan(ctx, res, opt, pr); err != nil {
 			return nil, err

@@ -21,7 +21,7 @@ func (u *setup) plan(ctx context.Context, res *PlanResult, opt PlanOptions, pr *
 	}
 	no := false
 	res.TargetReachable = &no
-	b := u.budget(u.frames, u.tracks)
+	b := u.budget(u.groups)
 	kInf := coverageFactor(u.p, math.Inf(1))
 	if fixed := kInf * math.Sqrt(b.fixedRelVar()); fixed >= target {
 		src := b.dominantFixed()
@@ -29,7 +29,7 @@ func (u *setup) plan(ctx context.Context, res *PlanResult, opt PlanOptions, pr *
 			100*fixed, 100*target, src, 100*kInf*relUOf(b, src))
 		return nil
 	}
-	gum := func(frames int) float64 { return u.budget(frames, u.tracks).RelExpanded }
+	gum := func(frames int) float64 { return u.budget(uniform(frames, u.tracks)).RelExpanded }
 	if gum(MaxFrames) > target {
 		res.Unreachable = fmt.Sprintf("even %d frames per track with %d tracks give %.3g %% > target %.3g %%; use more tracks", MaxFrames, u.tracks, 100*gum(MaxFrames), 100*target)
 		return nil
@@ -76,7 +76,7 @@ func (u *setup) planFocus(res *PlanResult, frames int, mcAt func(frames, tracks 
 	res.Warnings = append(res.Warnings, fmt.Sprintf("focus: particles stay in a %.3g µm focal slab for %.3g frames on average, fewer than the %d recommended; more tracks of %d frames are suggested instead",
 		f.DepthUM, f.ExpectedFrames, frames, f.ReachableFrames))
 	target := u.s.TargetRelU
-	gum := func(m int) float64 { return u.budget(f.ReachableFrames, m).RelExpanded }
+	gum := func(m int) float64 { return u.budget(uniform(f.ReachableFrames, m)).RelExpanded }
 	if gum(MaxTracks) > target {
 		return nil
 	}
@@ -225,7 +225,7 @@ func (u *setup) curve(rec *int) []CurvePoint {
 	var pts []CurvePoint
 	for f := lo; f <= top; f++ {
 		if set[f] {
-			pts = append(pts, CurvePoint{Frames: f, RelExpanded: u.budget(f, u.tracks).RelExpanded})
+			pts = append(pts, CurvePoint{Frames: f, RelExpanded: u.budget(uniform(f, u.tracks)).RelExpanded})
 		}
 	}
 	return pts

@@ -42,23 +42,40 @@ type Scenario struct {
 	ExposureS            float64  `json:"exposure_s"`                           // t_E, 0 ≤ t_E ≤ Δt (0 = stroboscopic)
 	Frames               int      `json:"frames"`                               // positions per track
 	Tracks               int      `json:"tracks"`                               // number of tracks
-	LocalisationNM       float64  `json:"localisation_nm"`                      // localisation precision σ per axis
-	PixelRelU            float64  `json:"pixel_relative_u,omitempty"`           // relative standard uncertainty of the pixel size
-	DriftUMPerS          float64  `json:"drift_um_per_s,omitempty"`             // largest residual drift speed
-	DriftRemoved         bool     `json:"drift_removed,omitempty"`              // mean displacement subtracted per track
-	FocusDepthUM         float64  `json:"focus_depth_um,omitempty"`             // depth of the focal slab; 0 = not limited
-	Estimator            string   `json:"estimator"`                            // "cve", "known-noise" or "msd"
-	Coverage             float64  `json:"coverage"`                             // coverage probability p
-	TargetRelU           float64  `json:"target_relative_expanded_uncertainty"` // planner target U/r
-	Trials               int      `json:"trials,omitempty"`                     // 0 = adaptive (JCGM 101 7.9)
-	Seed                 uint64   `json:"seed"`                                 // random seed, recorded with results
-	ParticleDensity      float64  `json:"particle_density_kg_per_m3,omitempty"` // for the inertia check; 0 = 1050
+	// TrackLengths, when given, describes tracks of different lengths (recorded data); Frames and Tracks
+	// are then the longest and the total (Defaults fills them).
+	TrackLengths    []LengthGroup `json:"track_lengths,omitempty"`
+	LocalisationNM  float64       `json:"localisation_nm"`                      // localisation precision σ per axis
+	PixelRelU       float64       `json:"pixel_relative_u,omitempty"`           // relative standard uncertainty of the pixel size
+	DriftUMPerS     float64       `json:"drift_um_per_s,omitempty"`             // largest residual drift speed
+	DriftRemoved    bool          `json:"drift_removed,omitempty"`              // mean displacement subtracted per track
+	FocusDepthUM    float64       `json:"focus_depth_um,omitempty"`             // depth of the focal slab; 0 = not limited
+	Estimator       string        `json:"estimator"`                            // "cve", "known-noise" or "msd"
+	Coverage        float64       `json:"coverage"`                             // coverage probability p
+	TargetRelU      float64       `json:"target_relative_expanded_uncertainty"` // planner target U/r
+	Trials          int           `json:"trials,omitempty"`                     // 0 = adaptive (JCGM 101 7.9)
+	Seed            uint64        `json:"seed"`                                 // random seed, recorded with results
+	ParticleDensity float64       `json:"particle_density_kg_per_m3,omitempty"` // for the inertia check; 0 = 1050
 
 	// Review check (sizebudget check).
 	ReportedRadiusNM float64 `json:"reported_radius_nm,omitempty"`
 	ReportedUNM      float64 `json:"reported_u_nm,omitempty"`     // reported expanded uncertainty
 	ReportedK        float64 `json:"reported_k,omitempty"`        // its coverage factor (0 = use ReportedCoverage)
 	ReportedCoverage float64 `json:"reported_coverage,omitempty"` // or its coverage probability
+}
+
+// LengthGroup is a number of tracks with the same number of positions.
+type LengthGroup struct {
+	Frames int `json:"frames"` // positions per track
+	Count  int `json:"count"`  // tracks of that length
+}
+
+// lengthGroups returns the tracks grouped by length.
+func (s Scenario) lengthGroups() []LengthGroup {
+	if len(s.TrackLengths) > 0 {
+		return s.TrackLengths
+	}
+	return []LengthGroup{{Frames: s.Frames, Count: s.Tracks}}
 }
 
 // Demo returns the invented demonstration scenario: 50 nm beads in water at 25 °C, 30 frames/s.
@@ -142,6 +159,12 @@ func (s Scenario) Defaults() Scenario {
 	}
 	if s.Coverage == 0 {
 		s.Coverage = 0.95
+	}
+	if len(s.TrackLengths) > 0 && s.Frames == 0 && s.Tracks == 0 {
+		for _, g := range s.TrackLengths {
+			s.Frames = max(s.Frames, g.Frames)
+			s.Tracks += g.Count
+		}
 	}
 	return s
 }

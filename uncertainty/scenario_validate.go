@@ -112,6 +112,21 @@ func (s Scenario) Validate() error {
 	if s.Tracks < 1 || s.Tracks > MaxTracks {
 		return &FieldError{Field: "tracks", Value: s.Tracks, Allowed: fmt.Sprintf("1 to %d", MaxTracks)}
 	}
+	if len(s.TrackLengths) > 0 {
+		longest, total := 0, 0
+		for i, g := range s.TrackLengths {
+			if g.Frames < MinFrames || g.Frames > MaxFrames {
+				return &FieldError{Field: fmt.Sprintf("track_lengths[%d].frames", i), Value: g.Frames, Allowed: fmt.Sprintf("%d to %d", MinFrames, MaxFrames)}
+			}
+			if g.Count < 1 || g.Count > MaxTracks {
+				return &FieldError{Field: fmt.Sprintf("track_lengths[%d].count", i), Value: g.Count, Allowed: fmt.Sprintf("1 to %d", MaxTracks)}
+			}
+			longest, total = max(longest, g.Frames), total+g.Count
+		}
+		if s.Frames != longest || s.Tracks != total {
+			return &FieldError{Field: "frames", Value: s.Frames, Allowed: fmt.Sprintf("%d (the longest of track_lengths) with tracks = %d (their total)", longest, total)}
+		}
+	}
 	if err := closed("localisation_nm", s.LocalisationNM, 0, maxSigmaNM); err != nil {
 		return err
 	}

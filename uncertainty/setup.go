@@ -20,14 +20,15 @@ type setup struct {
 	blur      float64 // R = t_E/(6Δt)
 	s2        float64 // localisation variance per axis, m²
 	dims      int
-	frames    int // positions per track
-	tracks    int
-	uT        float64 // standard uncertainty of the temperature, K
-	uEta      float64 // relative standard uncertainty of the viscosity
-	uPix      float64 // relative standard uncertainty of the pixel size
-	drift     float64 // largest residual drift speed, m/s
-	driftBias bool    // drift present and not removed
-	p         float64 // coverage probability
+	frames    int           // positions per track (the longest, with track lengths)
+	tracks    int           // number of tracks
+	groups    []LengthGroup // tracks grouped by length: the scenario's track_lengths, or frames × tracks
+	uT        float64       // standard uncertainty of the temperature, K
+	uEta      float64       // relative standard uncertainty of the viscosity
+	uPix      float64       // relative standard uncertainty of the pixel size
+	drift     float64       // largest residual drift speed, m/s
+	driftBias bool          // drift present and not removed
+	p         float64       // coverage probability
 }
 
 // newSetup derives the setup of a scenario; s must have passed Validate.
@@ -55,6 +56,7 @@ func newSetup(s Scenario) (*setup, error) {
 	sig := s.LocalisationNM * 1e-9
 	u.s2 = sig * sig
 	u.dims, u.frames, u.tracks = s.Dims, s.Frames, s.Tracks
+	u.groups = s.lengthGroups()
 	u.uT = s.TemperatureUK
 	if s.TemperatureDist == "rect" {
 		u.uT = s.TemperatureUK / math.Sqrt(3)
@@ -75,33 +77,55 @@ func (u *setup) msdLags(frames int) int {
 	return core.OptimalLags(u.D0, u.dt, u.blur, u.s2, frames, u.dims)
 }
 
-// trackRelVar is the relative variance Var(D̂)/D² of the pooled estimate of D from tracks tracks of
-// frames positions, for the scenario's estimator, from the exact finite-N variances (core).
-func (u *setup) trackRelVar(frames, tracks int) float64 {
+// uniform is the grouping of tracks tracks of frames positions each.
+func uniform(frames, tracks int) []LengthGroup { return []LengthGroup{{Frames: frames, Count: tracks}} }
+
+// trackRelVar is the relative variance Var(D̂)/D² of the pooled estimate of D from tracks grouped by
+// length, for the scenario's estimator, from the exact finite-N variances (core). Track estimates are
+// pooled with weights N_i/ΣN (N_i displacements), so Var = Σ_g M_g·(N_g/ΣN)²·Var₁(N_g).
+func (u *setup) trackRelVar(groups []LengthGroup) float64 {
+	total := 0.0
+	for _, g := range groups {
+		total += float64(g.Count * (g.Frames - 1))
+	}
+	v := 0.0
+	for _, g := range groups {
+		w := float64(g.Frames-1) / total
+		v += float64(g.Count) * w * w * u.trackVar1(g.Frames)
+	}
+	return v / (u.D0 * u.D0)
+}
+
+// trackVar1 is Var(D̂) in (m²/s)² of one track of frames positions.
+func (u *setup) trackVar1(frames int) float64 {
 	N := frames - 1
-	var v float64
 	switch u.s.Estimator {
 	case "known-noise":
-		v = core.VarKnownNoiseExact(u.D0, u.dt, u.blur, u.s2, N, u.dims)
+		return core.VarKnownNoiseExact(u.D0, u.dt, u.blur, u.s2, N, u.dims)
 	case "msd":
-		v = core.VarMSDFit(u.D0, u.dt, u.blur, u.s2, frames, u.msdLags(frames), u.dims)
+		return core.VarMSDFit(u.D0, u.dt, u.blur, u.s2, frames, u.msdLags(frames), u.dims)
 	default:
-		v = core.VarCVEExact(u.D0, u.dt, u.blur, u.s2, N, u.dims)
+		return core.VarCVEExact(u.D0, u.dt, u.blur, u.s2, N, u.dims)
 	}
-	return v / float64(tracks) / (u.D0 * u.D0)
 }
 
 // boundRelVar is the Cramér–Rao bound on the relative variance of any unbiased estimate of D from the
-// same data (σ unknown, or known for the known-noise estimator).
-func (u *setup) boundRelVar(frames, tracks int) float64 {
-	N := frames - 1
-	var v float64
-	if u.s.Estimator == "known-noise" {
-		v = core.CRBKnownNoise(u.D0, u.dt, u.blur, u.s2, N, u.dims)
-	} else {
-		v = core.CRBExact(u.D0, u.dt, u.blur, u.s2, N, u.dims)
+// same data (σ unknown, or known for the known-noise estimator). Over groups of tracks the Fisher
+// information of D is added, 1/Var = Σ_g M_g/CRB(N_g) (exact for equal lengths; with mixed lengths it
+// treats σ² as a nuisance per group, slightly looser than one shared σ²).
+func (u *setup) boundRelVar(groups []LengthGroup) float64 {
+	info := 0.0
+	for _, g := range groups {
+		N := g.Frames - 1
+		var v float64
+		if u.s.Estimator == "known-noise" {
+			v = core.CRBKnownNoise(u.D0, u.dt, u.blur, u.s2, N, u.dims)
+		} else {
+			v = core.CRBExact(u.D0, u.dt, u.blur, u.s2, N, u.dims)
+		}
+		info += float64(g.Count) / v
 	}
-	return v / float64(tracks) / (u.D0 * u.D0)
+	return 1 / info / (u.D0 * u.D0)
 }
 
 // driftRelBias is the largest relative bias of D̂ that a residual drift of speed u.drift causes when

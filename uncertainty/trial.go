@@ -48,6 +48,9 @@ func BestEngine(s Scenario) string {
 // interval is the one to report (JCGM 101 5.3).
 func TrialModel(spec TrialSpec) (Model, string, error) {
 	s := spec.Scenario
+	if spec.Frames != 0 || spec.Tracks != 0 {
+		s.TrackLengths = nil
+	}
 	if spec.Frames != 0 {
 		s.Frames = spec.Frames
 	}
@@ -101,31 +104,54 @@ func TrialModel(spec TrialSpec) (Model, string, error) {
 }
 
 // estimator returns the sampler of D̂ for the engine: given the true D and the drift velocity (m/s per
-// axis, nil = none), one pooled estimate from u.tracks tracks of u.frames positions.
+// axis, nil = none), one pooled estimate from the scenario's tracks (grouped by length; the track
+// estimates pooled with weights N_i/ΣN, as core.CVE and core.KnownNoise pool them).
 func (u *setup) estimator(engine string) (func(r *rand.Rand, D float64, drift []float64) float64, error) {
-	N := u.frames - 1
 	if engine == EngineSpectral {
-		var form core.QuadraticForm
-		if u.s.Estimator == "known-noise" {
-			form = core.KnownNoiseForm(u.dt, u.blur, u.s2, N)
-		} else {
-			form = core.CVEForm(u.dt, N)
+		total := 0
+		for _, g := range u.groups {
+			total += g.Count * (g.Frames - 1)
 		}
-		sp := core.NewSpectral(form, u.dt, u.blur, u.s2, N, u.tracks, u.dims)
-		return sp.Sample, nil
+		samplers := make([]*core.Spectral, len(u.groups))
+		weights := make([]float64, len(u.groups))
+		for i, g := range u.groups {
+			N := g.Frames - 1
+			form := core.CVEForm(u.dt, N)
+			if u.s.Estimator == "known-noise" {
+				form = core.KnownNoiseForm(u.dt, u.blur, u.s2, N)
+			}
+			samplers[i] = core.NewSpectral(form, u.dt, u.blur, u.s2, N, g.Count, u.dims)
+			weights[i] = float64(g.Count*N) / float64(total)
+		}
+		if len(samplers) == 1 {
+			return samplers[0].Sample, nil
+		}
+		return func(r *rand.Rand, D float64, drift []float64) float64 {
+			sum := 0.0
+			for i, sp := range samplers {
+				sum += weights[i] * sp.Sample(r, D, drift)
+			}
+			return sum
+		}, nil
 	}
 	lags := 0
 	if u.s.Estimator == "msd" {
-		lags = u.msdLags(u.frames)
+		shortest := u.frames
+		for _, g := range u.groups {
+			shortest = min(shortest, g.Frames)
+		}
+		lags = min(u.msdLags(u.frames), shortest-1)
 	}
 	sigma := math.Sqrt(u.s2)
 	removeDrift := u.s.DriftRemoved
 	return func(r *rand.Rand, D float64, drift []float64) float64 {
 		rec := core.Recording{D: D, Dims: u.dims, Interval: u.dt, Exposure: u.tE, Sigma: sigma, Drift: drift}
-		tracks := make([]core.Track, u.tracks)
+		tracks := make([]core.Track, 0, u.tracks)
 		src := randSource{r}
-		for j := range tracks {
-			tracks[j] = core.Simulate(src, rec, u.frames)
+		for _, g := range u.groups {
+			for range g.Count {
+				tracks = append(tracks, core.Simulate(src, rec, g.Frames))
+			}
 		}
 		var e core.Estimate
 		var err error
