@@ -3,7 +3,6 @@ package core
 import (
 	"fmt"
 	"math"
-	"sort"
 )
 
 // MSD returns the time-averaged mean squared displacement of tracks at lags 1..maxLag frames, summed
@@ -302,76 +301,72 @@ func (v msdVariogram) cov(n, m int) float64 {
 	if lo > hi {
 		return 0
 	}
-	count := func(d int) float64 {
-		return float64(min(km-1, kn-1-d) - max(0, -d) + 1)
-	}
-	h := func(d int) float64 {
-		return float64(absInt(d+n) + absInt(d-m) - absInt(d+n-m) - absInt(d))
-	}
-	e := func(d int) float64 {
-		var s float64
-		if d == 0 {
-			s++
-		}
-		if d == m-n {
-			s++
-		}
-		if d == -n {
-			s--
-		}
-		if d == m {
-			s--
-		}
-		return s
-	}
+	// Breakpoints within [lo, hi], sorted by insertion (at most 5).
 	var bp [5]int
 	nb := 0
 	for _, p := range [...]int{lo, hi, 0, m - n, kn - km} {
-		if p >= lo && p <= hi {
-			bp[nb] = p
-			nb++
+		if p < lo || p > hi {
+			continue
 		}
+		j := nb
+		for j > 0 && bp[j-1] > p {
+			bp[j] = bp[j-1]
+			j--
+		}
+		bp[j] = p
+		nb++
 	}
-	pts := bp[:nb]
-	sort.Ints(pts)
 	// Σ_{δ=lo}^{hi} count·h² over the pieces [p, q) with both factors linear on [p, q], then δ = hi.
 	var t float64
-	for i := 0; i+1 < len(pts); i++ {
-		p, q := pts[i], pts[i+1]
+	for i := 0; i+1 < nb; i++ {
+		p, q := bp[i], bp[i+1]
 		if p == q {
 			continue
 		}
-		a, b := count(p), count(p+1)-count(p)
-		c, g := h(p), h(p+1)-h(p)
+		a := pairCount(kn, km, p)
+		b := pairCount(kn, km, p+1) - a
+		c := overlap2(n, m, p)
+		g := overlap2(n, m, p+1) - c
 		fl := float64(q - p)
 		s1 := fl * (fl - 1) / 2
 		s2 := (fl - 1) * fl * (2*fl - 1) / 6
 		t += a*c*c*fl + (2*a*c*g+b*c*c)*s1 + (a*g*g+2*b*c*g)*s2 + b*g*g*s1*s1
 	}
-	hh := h(hi)
-	t += count(hi) * hh * hh
+	hh := overlap2(n, m, hi)
+	t += pairCount(kn, km, hi) * hh * hh
 	sum := v.u * v.u * t
-	// Correct the few offsets where the noise term e is non-zero.
-	seen := [4]int{}
-	ns := 0
-	for _, d := range [...]int{0, m - n, -n, m} {
+	// Correct the offsets where the noise term e(δ) = [δ=0] + [δ=m−n] − [δ=−n] − [δ=m] is non-zero.
+	// Only δ = 0 and δ = m − n can coincide (when n = m); add skips offsets outside [lo, hi], where the
+	// track is too short for the two windows to touch.
+	add := func(d int, e float64) {
 		if d < lo || d > hi {
-			continue
+			return
 		}
-		dup := false
-		for _, s := range seen[:ns] {
-			dup = dup || s == d
-		}
-		if dup {
-			continue
-		}
-		seen[ns] = d
-		ns++
-		uh := v.u * h(d)
-		c := uh + v.beta*e(d)
-		sum += count(d) * (c*c - uh*uh)
+		uh := v.u * overlap2(n, m, d)
+		c := uh + v.beta*e
+		sum += pairCount(kn, km, d) * (c*c - uh*uh)
 	}
+	if n == m {
+		add(0, 2)
+	} else {
+		add(0, 1)
+		add(m-n, 1)
+	}
+	add(-n, -1)
+	add(m, -1)
 	return 2 * sum / (float64(kn) * float64(km))
+}
+
+// pairCount is the number of index pairs (i, l), 0 ≤ i < kn, 0 ≤ l < km, with i − l = d, for d in
+// [−(km−1), kn−1].
+func pairCount(kn, km, d int) float64 {
+	return float64(min(km-1, kn-1-d) - max(0, -d) + 1)
+}
+
+// overlap2 is h(d) = |d+n| + |d−m| − |d+n−m| − |d|: twice the overlap, in frames, of the position
+// windows [d, d+n] and [0, m].
+func overlap2(n, m, d int) float64 {
+	return float64(absInt(d+n) + absInt(d-m) - absInt(d+n-m) - absInt(d))
 }
 
 func absInt(x int) int {
