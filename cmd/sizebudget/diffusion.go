@@ -17,6 +17,9 @@ const (
 	maxRadius    = 1e-4  // m (100 µm)
 	minDiffusion = 1e-20 // m²/s (1e-8 µm²/s)
 	maxDiffusion = 1e-6  // m²/s (1e6 µm²/s)
+	// maxWallDistance bounds the centre-to-wall distance (m): the hindrance 1 − F∥ ≈ (9/16)·r/z is
+	// below 1e-4 there even for a 100 µm sphere.
+	maxWallDistance = 1
 )
 
 const diffusionAbout = `Diffusion applies Stokes–Einstein, D = k_B·T/(6π·η·r), in either direction: give -radius to get
@@ -188,12 +191,12 @@ func checkDiffusion(D float64) error {
 }
 
 // checkWall returns a *core.RangeError on "wall_distance_nm" unless the centre-to-wall distance z is
-// at least core.FaxenMinDistance radii r (both in m).
+// at least core.FaxenMinDistance radii r and at most maxWallDistance (both in m).
 func checkWall(r, z float64) error {
-	if !(z >= core.FaxenMinDistance*r) || math.IsInf(z, 0) {
+	if !(z >= core.FaxenMinDistance*r && z <= maxWallDistance) {
 		return &core.RangeError{Field: "wall_distance_nm", Value: Length.In(z, "nm"),
-			Min: Length.In(core.FaxenMinDistance*r, "nm"), Max: math.Inf(1),
-			Why: fmt.Sprintf("Faxén's series for D∥ needs the centre at least %g radii from the wall", core.FaxenMinDistance)}
+			Min: Length.In(core.FaxenMinDistance*r, "nm"), Max: Length.In(maxWallDistance, "nm"),
+			Why: fmt.Sprintf("Faxén's series for D∥ needs the centre at least %g radii from the wall; farther than 1 m a wall changes nothing visible", core.FaxenMinDistance)}
 	}
 	return nil
 }

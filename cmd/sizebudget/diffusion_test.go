@@ -246,10 +246,12 @@ func TestDiffusionRangeErrors(t *testing.T) {
 		{[]string{"-diffusion", "0um2/s"}, "diffusion_um2_per_s", 0, 1e-8, 1e6},
 		{[]string{"-diffusion", "1m2/s"}, "diffusion_um2_per_s", 1e12, 1e-8, 1e6},
 		{[]string{"-diffusion", "1e-7um2/s"}, "radius_nm", rHuge, 0.1, 1e5},
-		// Faxén's series needs z ≥ 1.5 r (core.FaxenMinDistance): 75 nm for 50 nm.
-		{[]string{"-radius", "50nm", "-wall-distance", "60nm"}, "wall_distance_nm", 60, 75, math.Inf(1)},
-		{[]string{"-radius", "50nm", "-wall-distance", "0nm"}, "wall_distance_nm", 0, 75, math.Inf(1)},
-		{[]string{"-diffusion", "4.9um2/s", "-wall-distance", "-1nm"}, "wall_distance_nm", -1, 0.15, math.Inf(1)},
+		// Faxén's series needs z ≥ 1.5 r (core.FaxenMinDistance): 75 nm for 50 nm; at most 1 m (1e9 nm).
+		{[]string{"-radius", "50nm", "-wall-distance", "60nm"}, "wall_distance_nm", 60, 75, 1e9},
+		{[]string{"-radius", "50nm", "-wall-distance", "0nm"}, "wall_distance_nm", 0, 75, 1e9},
+		{[]string{"-radius", "50nm", "-wall-distance", "2m"}, "wall_distance_nm", 2e9, 75, 1e9},
+		{[]string{"-diffusion", "4.9um2/s", "-wall-distance", "-1nm"}, "wall_distance_nm", -1, 0.15, 1e9},
+		{[]string{"-diffusion", "1e6um2/s", "-wall-distance", "1e308m"}, "wall_distance_nm", math.Inf(1), 0.15, 1e9},
 		// The medium's range (core.Water).
 		{[]string{"-radius", "50nm", "-temp", "400K"}, "temperature_K", 400, 273.15, tmax},
 	} {
