@@ -40,9 +40,12 @@ type CheckResult struct {
 // expanded uncertainty U with coverage factor k (or coverage probability p_rep, converted with the
 // normal quantile) is brought to the scenario's coverage p as U·z_{(1+p)/2}/k. It is compared with
 //
-//   - the bound: z_p·√(CRB(D)/D² + u_fixed²), the Cramér–Rao bound on D from the same frames and tracks
-//     (Michalet & Berglund 2012) plus the sources that do not shrink with frames;
-//   - the achievable: the Monte Carlo relative expanded uncertainty of the stated estimator (Plan).
+//   - the achievable: the Monte Carlo relative expanded uncertainty of the stated estimator (Plan);
+//   - the bound: the achievable scaled by √((CRB(D)/D² + u_fixed²)/(Var(D̂)/D² + u_fixed²)), i.e. the
+//     same interval had the track term been the Cramér–Rao bound on D from the same frames and tracks
+//     (Michalet & Berglund 2012) instead of the estimator's variance; the sources that do not shrink
+//     with frames are kept. Scaling the Monte Carlo figure, rather than taking z_p·√(CRB + u_fixed²)
+//     alone, keeps both figures on the same (Monte Carlo) footing, so bound ≤ achievable always.
 //
 // Verdict: below-bound if reported < bound; optimistic if below achievable; consistent up to twice the
 // achievable; conservative above.
@@ -82,7 +85,7 @@ func Check(ctx context.Context, s Scenario, opt PlanOptions) (*CheckResult, erro
 	c := &CheckResult{Format: CheckFormat, Coverage: s.Coverage, ReportedRadius: s.ReportedRadiusNM, ReportedU: s.ReportedUNM, ReportedK: k,
 		ReportedRelU:   s.ReportedUNM / k * zp / s.ReportedRadiusNM,
 		AchievableRelU: pr.RelExpanded,
-		BoundRelU:      zp * math.Sqrt(u.boundRelVar(u.groups)+fixed),
+		BoundRelU:      pr.RelExpanded * math.Sqrt((u.boundRelVar(u.groups)+fixed)/(u.trackRelVar(u.groups)+fixed)),
 		FixedRelU:      zp * math.Sqrt(fixed),
 		Plan:           pr}
 	pct := func(x float64) string { return fmt.Sprintf("%.3g %%", 100*x) }
