@@ -1,7 +1,6 @@
 package uncertainty
 
 import (
-	"fmt"
 	"math"
 	"math/rand/v2"
 
@@ -82,16 +81,12 @@ func TrialModel(spec TrialSpec) (Model, string, error) {
 		return nil, "", err
 	}
 	rnm := u.r0 * 1e9
+	viscosity := u.viscosityAt()
 	m := func(r *rand.Rand, y []float64) {
 		drift := make([]float64, u.dims)
 		for i := range y {
 			T := u.drawTemperature(r)
-			eta, err := u.medium.Viscosity(T)
-			if err != nil {
-				// Validate keeps every drawn temperature inside the medium's range.
-				panic(fmt.Sprintf("uncertainty: viscosity at a drawn temperature: %v", err))
-			}
-			eta *= 1 + u.uEta*clampNormal(r)
+			eta := viscosity(T) * (1 + u.uEta*clampNormal(r))
 			delta := u.uPix * clampNormal(r)
 			D := core.Boltzmann * T / (6 * math.Pi * eta * u.r0)
 			d := u.drawDrift(r, drift)
