@@ -32,6 +32,8 @@ type command struct {
 var commands = map[string]command{
 	"viscosity": {runViscosity, "viscosity of water, glycerol–water or a custom liquid at a temperature, with its uncertainty"},
 	"diffusion": {runDiffusion, "Stokes–Einstein both ways (radius → D, D → radius), optionally near a wall"},
+	"plan":      {runPlan, "coverage interval, uncertainty budget and the frames per track a target needs"},
+	"check":     {runCheck, "review a reported radius ± uncertainty against what its settings can achieve"},
 }
 
 // A usageError reports a command line that cannot be understood: an unknown command or flag, a
