@@ -2,4 +2,14 @@ module sizebudget
 
 go 1.26
 
-require gonum.org/v1/gonum v0.17.0 // indirect
+require (
+	github.com/chromedp/cdproto v0.159.0
+	github.com/chromedp/chromedp v0.23.0
+	github.com/hack-pad/go-indexeddb v0.3.2
+	gonum.org/v1/gonum v0.17.0
+)
+
+require (
+	github.com/go-json-experiment/json v0.0.0-20260213210345-44df1a37e875 // indirect
+	github.com/hack-pad/safejs v0.1.0 // indirect
+)
