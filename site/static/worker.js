@@ -1,0 +1,41 @@
+// A Web Worker with its own instance of the sizebudget engine (main.wasm, compiled once by the page
+// and sent here). Its role comes with the first message:
+//   coordinator — runs plans and checks for the page (and hands Monte Carlo chunks to the helpers
+//                 whose MessagePorts it is given);
+//   helper      — computes the chunks it is sent on its MessagePort.
+// Messages: page → worker {type: 'init', role, module, ports | port}, {type: 'run', kind, id,
+// scenario, options}; worker → page {type: 'ready'}, {type: 'fatal', message}, and from the
+// coordinator {type: 'progress' | 'result' | 'error', id, ...} (see wasm/coordinator.go).
+'use strict';
+
+/* global Go */
+importScripts('wasm_exec.js');
+
+let engine = null;
+
+self.onmessage = async (e) => {
+  const m = e.data;
+  try {
+    if (m.type === 'init') {
+      self.sizebudgetRole = m.role;
+      const go = new Go();
+      const instance = await WebAssembly.instantiate(m.module, go.importObject);
+      go.run(instance);
+      engine = self.sizebudgetWorker;
+      if (m.role === 'helper') {
+        m.port.onmessage = (ev) => engine.chunks(ev.data, m.port);
+      } else {
+        const r = engine.attach(m.ports || []);
+        if (r && r.error) throw r.error;
+      }
+      self.postMessage({ type: 'ready' });
+    } else if (m.type === 'run') {
+      const r = engine.run(m.kind, m.id, m.scenario, m.options || '');
+      if (r && r.error) {
+        self.postMessage({ type: 'error', id: m.id, error: { message: r.error.message, field: r.error.field || '' } });
+      }
+    }
+  } catch (err) {
+    self.postMessage({ type: 'fatal', message: String((err && err.message) || err) });
+  }
+};
