@@ -34,6 +34,7 @@ var commands = map[string]command{
 	"diffusion": {runDiffusion, "Stokes–Einstein both ways (radius → D, D → radius), optionally near a wall"},
 	"plan":      {runPlan, "coverage interval, uncertainty budget and the frames per track a target needs"},
 	"check":     {runCheck, "review a reported radius ± uncertainty against what its settings can achieve"},
+	"serve":     {runServe, "serve the offline browser app on 127.0.0.1 (builds the WebAssembly engine when needed)"},
 }
 
 // A usageError reports a command line that cannot be understood: an unknown command or flag, a
