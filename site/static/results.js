@@ -38,9 +38,9 @@ function figure(what, value, sub, cls = '') {
     el('p', { class: 'what' }, what), el('p', { class: 'value' }, value), sub ? el('p', { class: 'sub' }, sub) : null);
 }
 
-function chartBox(charts, name, label) {
+function chartBox(charts, name, label, cls = 'chart') {
   if (!charts || !charts[name]) return null;
-  return el('figure', { class: 'chart' }, svgNode(charts[name], label));
+  return el('figure', { class: cls }, svgNode(charts[name], label));
 }
 
 // recommendation describes the planner's answer in words.
@@ -123,7 +123,7 @@ export function renderPlan(box, r) {
     `Monte Carlo: ${mc.trials} trials${mc.adaptive ? ` in ${mc.runs} runs (adaptive, ${mc.converged ? 'converged' : 'stopped at the cap'})` : ''}, ` +
     `seed ${mc.seed}, ${mc.engine} engine. The same seed gives the same numbers on the command line.`);
 
-  box.replaceChildren(
+  box.replaceChildren(...[
     head,
     el('p', { class: rec.ok === false ? 'callout bad' : 'callout' }, el('strong', {}, 'Frames needed. '), rec.text),
     focus,
@@ -132,13 +132,13 @@ export function renderPlan(box, r) {
       chartBox(charts, 'histogram', 'histogram'),
       chartBox(charts, 'curve', 'frames curve')),
     el('h3', {}, 'Uncertainty budget'),
-    chartBox(charts, 'budget', 'budget bars'),
+    chartBox(charts, 'budget', 'budget bars', 'chart bars'),
     budget,
     el('h3', {}, 'GUM against Monte Carlo'),
     validation,
     mcInfo,
     el('p', { class: 'hint' }, `Computed for “${sc.name || 'this scenario'}”.`),
-  );
+  ].filter(Boolean));
 }
 
 const verdictWords = {

@@ -80,14 +80,15 @@ export function initSessions(app) {
       button('Export', () => exportOne(s), 'secondary', { 'aria-label': `Export “${s.name}”` }),
       button('Delete', () => remove(s.id), 'danger', { 'aria-label': `Delete “${s.name}”` }),
     );
-    li.append(
+    li.append(...[
       el('div', { class: 'top' },
         el('label', { class: 'pick', for: `pick-${s.id}` }, box),
         el('div', {},
           el('div', { class: 'name' }, s.name),
           el('div', { class: 'meta' }, `changed ${when(s.modified)}${s.created !== s.modified ? ` · created ${when(s.created)}` : ''}`))),
       s.note ? el('p', { class: 'note' }, s.note) : null,
-      actions);
+      actions,
+    ].filter(Boolean));
     return li;
   }
 
