@@ -95,6 +95,9 @@ func planCommand(ctx context.Context, args []string, stdout, stderr io.Writer) e
 	if err := parseFlags(fs, args); err != nil {
 		return err
 	}
+	if *svg != "" && *svg == *curveSVG {
+		return usagef(fs, "-svg and -curve-svg name the same file %q", *svg)
+	}
 	s, err := sf.Load(fs)
 	if err != nil {
 		return err
