@@ -18,9 +18,11 @@ import (
 	"testing"
 	"time"
 
+	"github.com/chromedp/cdproto/emulation"
 	"github.com/chromedp/cdproto/network"
 	"github.com/chromedp/cdproto/page"
 	"github.com/chromedp/chromedp"
+	"github.com/chromedp/chromedp/kb"
 
 	"sizebudget/site"
 	"sizebudget/uncertainty"
@@ -36,7 +38,7 @@ var writeScreens = flag.Bool("screens", false, "write the browser app's screensh
 const cspProbe = `window.__csp = [];
 document.addEventListener('securitypolicyviolation', (e) => window.__csp.push(e.violatedDirective + ' ' + e.blockedURI));`
 
-func findChrome(t *testing.T) string {
+func findChrome(t testing.TB) string {
 	t.Helper()
 	for _, name := range []string{os.Getenv("SIZEBUDGET_CHROME"), "chromium", "chromium-browser", "google-chrome"} {
 		if name == "" {
@@ -62,7 +64,7 @@ type appServer struct {
 	done chan struct{}
 }
 
-func (s *appServer) start(t *testing.T) {
+func (s *appServer) start(t testing.TB) {
 	t.Helper()
 	addr := s.addr
 	if addr == "" {
@@ -99,7 +101,7 @@ func (s *appServer) stop() {
 
 func (s *appServer) url() string { return "http://" + s.addr + "/" }
 
-type logWriter struct{ t *testing.T }
+type logWriter struct{ t testing.TB }
 
 func (w logWriter) Write(p []byte) (int, error) {
 	w.t.Log(strings.TrimSpace(string(p)))
@@ -115,7 +117,7 @@ type browser struct {
 	requests []string
 }
 
-func newBrowser(t *testing.T, chrome string, width, height int) *browser {
+func newBrowser(t testing.TB, chrome string, width, height int) *browser {
 	t.Helper()
 	opts := append(chromedp.DefaultExecAllocatorOptions[:],
 		chromedp.ExecPath(chrome),
@@ -168,7 +170,7 @@ func newBrowser(t *testing.T, chrome string, width, height int) *browser {
 }
 
 // do runs actions with a time limit.
-func (b *browser) do(t *testing.T, limit time.Duration, actions ...chromedp.Action[chromedp.Void]) {
+func (b *browser) do(t testing.TB, limit time.Duration, actions ...chromedp.Action[chromedp.Void]) {
 	t.Helper()
 	ctx, cancel := context.WithTimeout(b.ctx, limit)
 	defer cancel()
@@ -178,7 +180,7 @@ func (b *browser) do(t *testing.T, limit time.Duration, actions ...chromedp.Acti
 }
 
 // eval evaluates a JavaScript expression (awaiting a Promise) and decodes its value into T.
-func eval[T any](t *testing.T, b *browser, expr string) T {
+func eval[T any](t testing.TB, b *browser, expr string) T {
 	t.Helper()
 	v, err := evalErr[T](b, expr, 90*time.Second)
 	if err != nil {
@@ -199,13 +201,13 @@ func firstLine(s string) string {
 }
 
 // open loads the app and waits until it is ready.
-func (b *browser) open(t *testing.T, u string) {
+func (b *browser) open(t testing.TB, u string) {
 	t.Helper()
 	b.do(t, 30*time.Second, chromedp.Navigate(u))
 	b.waitReady(t)
 }
 
-func (b *browser) waitReady(t *testing.T) {
+func (b *browser) waitReady(t testing.TB) {
 	t.Helper()
 	ctx, cancel := context.WithTimeout(b.ctx, 60*time.Second)
 	defer cancel()
@@ -217,7 +219,7 @@ func (b *browser) waitReady(t *testing.T) {
 }
 
 // waitFor polls a JavaScript condition.
-func (b *browser) waitFor(t *testing.T, cond string, limit time.Duration) {
+func (b *browser) waitFor(t testing.TB, cond string, limit time.Duration) {
 	t.Helper()
 	ctx, cancel := context.WithTimeout(b.ctx, limit+5*time.Second)
 	defer cancel()
@@ -258,7 +260,9 @@ func setField(t *testing.T, b *browser, key, value string) {
 		i.dispatchEvent(new Event('input', {bubbles: true})); i.dispatchEvent(new Event('change', {bubbles: true})); return true; })()`, key, value))
 }
 
-func TestBrowserApp(t *testing.T) {
+// startBrowserApp finds the browser, builds (or takes from the cache) the engine of the current source
+// and serves the app on 127.0.0.1. It returns the browser's path, the server and the source root.
+func startBrowserApp(t testing.TB) (string, *appServer, string) {
 	chrome := findChrome(t)
 	root, err := moduleRoot()
 	if err != nil {
@@ -272,25 +276,24 @@ func TestBrowserApp(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	raw, gz := app.Size("main.wasm")
-	t.Logf("engine: main.wasm %d bytes raw, %d bytes gzip (%.2f MB, %.2f MB)", raw, gz, float64(raw)/1e6, float64(gz)/1e6)
-
 	srv := &appServer{app: app}
 	srv.start(t)
-	defer srv.stop()
+	t.Cleanup(srv.stop)
+	return chrome, srv, root
+}
+
+func TestBrowserApp(t *testing.T) {
+	chrome, srv, root := startBrowserApp(t)
+	raw, gz := srv.app.Size("main.wasm")
+	t.Logf("engine: main.wasm %d bytes raw, %d bytes gzip (%.2f MB, %.2f MB)", raw, gz, float64(raw)/1e6, float64(gz)/1e6)
 	origin := strings.TrimSuffix(srv.url(), "/")
 
 	b := newBrowser(t, chrome, 1280, 800)
-	start := time.Now()
 	b.open(t, srv.url())
 
 	t.Run("FirstResult", func(t *testing.T) {
-		// Time to first result: from opening the page to the rendered results of the demo, when
-		// "Compute plan" is pressed as soon as the app is ready.
 		b.do(t, 10*time.Second, chromedp.Click(chromedp.CSS("#run-plan")))
 		b.waitFor(t, `!document.getElementById('results').hidden`, 90*time.Second)
-		ms := eval[float64](t, b, `performance.now()`)
-		t.Logf("time to first result (page open to demo results shown, cold profile): %.0f ms (wall %.1f s incl. browser start)", ms, time.Since(start).Seconds())
 		text := eval[string](t, b, `document.getElementById('results').textContent`)
 		for _, want := range []string{"coverage interval", "Uncertainty budget", "GUM against Monte Carlo", "Frames needed"} {
 			if !strings.Contains(text, want) {
@@ -324,19 +327,6 @@ func TestBrowserApp(t *testing.T) {
 		compareJSON(t, "plan", want, got, 1e-9)
 	})
 
-	t.Run("Speedup", func(t *testing.T) {
-		best := func(workers int) float64 {
-			ms := math.Inf(1)
-			for range 2 {
-				ms = math.Min(ms, eval[float64](t, b, fmt.Sprintf(`sizebudget.plan(sizebudget.demo(), {workers: %d}).then((r) => r.elapsed_ms)`, workers)))
-			}
-			return ms
-		}
-		one, two := best(1), best(2)
-		t.Logf("demo plan in the browser: 1 worker %.0f ms, 2 workers %.0f ms: speed-up %.2f× (navigator.hardwareConcurrency %d)",
-			one, two, one/two, eval[int](t, b, `navigator.hardwareConcurrency`))
-	})
-
 	t.Run("ProgressAndCancel", func(t *testing.T) {
 		eval[bool](t, b, `(() => {
 			window.__prog = []; window.__outcome = null;
@@ -364,8 +354,10 @@ func TestBrowserApp(t *testing.T) {
 				t.Errorf("progress went back: %v then %v", prog[i-1], prog[i])
 			}
 		}
-		t.Logf("progress: %d reports before the cancel, largest gap %.0f ms; cancel took effect in %.1f ms",
-			len(prog), gap, eval[float64](t, b, `window.__cancelledAt - window.__cancelAsked`))
+		if len(prog) < 3 {
+			t.Errorf("%d progress reports", len(prog))
+		}
+		t.Logf("progress: %d reports before the cancel, largest gap %.0f ms (timings are measured by the benchmarks; this is for the log)", len(prog), gap)
 		// The app computes again after a cancel.
 		r := eval[float64](t, b, `sizebudget.plan({...sizebudget.demo(), trials: 10000}).then((r) => r.relative_expanded_uncertainty)`)
 		if !(r > 0 && r < 1) {
@@ -442,6 +434,23 @@ func TestBrowserApp(t *testing.T) {
 		eval[any](t, b, `sizebudget.sessions.restore(`+mustJSON(gone)+`)`)
 		if n := eval[int](t, b, `sizebudget.sessions.list().then((l) => l.length)`); n != 3 {
 			t.Errorf("after undo of a delete: %d sessions, want 3", n)
+		}
+		// Delete and undo from the list, then compare two sessions side by side.
+		b.do(t, 10*time.Second, chromedp.Click(chromedp.CSS("#tab-sessions")))
+		eval[bool](t, b, `(document.getElementById('search').dispatchEvent(new Event('input')), true)`)
+		b.waitFor(t, `document.querySelectorAll('#session-list .session').length === 3`, 10*time.Second)
+		b.do(t, 10*time.Second, chromedp.Click(chromedp.CSS(fmt.Sprintf(`#session-list [data-id=%q] .actions button.danger`, dup))))
+		b.waitFor(t, `document.querySelectorAll('#session-list .session').length === 2 && !document.getElementById('toast').hidden`, 10*time.Second)
+		b.do(t, 10*time.Second, chromedp.Click(chromedp.CSS("#toast-action")))
+		b.waitFor(t, `document.querySelectorAll('#session-list .session').length === 3`, 10*time.Second)
+		b.do(t, 10*time.Second,
+			chromedp.Click(chromedp.CSS(fmt.Sprintf(`#pick-%s`, id))),
+			chromedp.Click(chromedp.CSS(fmt.Sprintf(`#pick-%s`, second))),
+			chromedp.Click(chromedp.CSS("#compare")))
+		b.waitFor(t, `!document.getElementById('comparison').hidden`, 10*time.Second)
+		differs := eval[[]string](t, b, `[...document.querySelectorAll('#comparison tr.differs th')].map((th) => th.textContent)`)
+		if len(differs) != 2 || !strings.HasPrefix(differs[0], "Frames per track") || !strings.HasPrefix(differs[1], "Tracks") {
+			t.Errorf("compare: differing rows %v; want frames and tracks", differs)
 		}
 		eval[any](t, b, fmt.Sprintf(`sizebudget.sessions.remove(%q)`, dup))
 		exported = eval[string](t, b, `sizebudget.exportAll()`)
@@ -536,8 +545,94 @@ func TestBrowserApp(t *testing.T) {
 		u.checkClean(t, origin)
 	})
 
+	t.Run("Accessibility", func(t *testing.T) {
+		a := newBrowser(t, chrome, 360, 740)
+		a.do(t, 10*time.Second, chromedp.EmulateViewport(360, 740))
+		a.open(t, srv.url())
+		for _, tab := range []string{"tab-settings", "tab-results", "tab-review", "tab-sessions"} {
+			a.do(t, 10*time.Second, chromedp.Click(chromedp.CSS("#"+tab)))
+			// Every control has a label; every target is at least 44 px both ways (checkboxes count
+			// by their label); nothing is wider than a 360 px screen.
+			problems := eval[[]string](t, a, `(() => {
+				const out = [];
+				const shown = (e) => e.getClientRects().length > 0 && getComputedStyle(e).visibility !== 'hidden';
+				for (const e of document.querySelectorAll('input, select, textarea')) {
+					if (!shown(e) && e.type !== 'file') continue;
+					const labelled = (e.labels && e.labels.length) || e.getAttribute('aria-label');
+					if (!labelled) out.push('no label: ' + (e.id || e.name));
+				}
+				for (const e of document.querySelectorAll('button, [role=tab], label.file-button, label.check, label.pick, input:not([type=checkbox]):not([type=file]), select')) {
+					if (!shown(e)) continue;
+					const r = e.getBoundingClientRect();
+					if (r.height < 44 || r.width < 44) out.push('small target: ' + (e.id || e.textContent.trim().slice(0, 30)) + ' ' + Math.round(r.width) + 'x' + Math.round(r.height));
+				}
+				if (document.documentElement.scrollWidth > window.innerWidth) out.push('page wider than the screen: ' + document.documentElement.scrollWidth);
+				return out; })()`)
+			for _, p := range problems {
+				t.Errorf("%s: %s", tab, p)
+			}
+		}
+		// The tabs follow the arrow keys.
+		a.do(t, 10*time.Second, chromedp.Focus(chromedp.CSS("#tab-results")), chromedp.KeyEvent(kb.ArrowRight))
+		if sel := eval[string](t, a, `document.activeElement.id + ' ' + document.activeElement.getAttribute('aria-selected')`); sel != "tab-review true" {
+			t.Errorf("ArrowRight from the Results tab: focus on %q, want the selected Review tab", sel)
+		}
+		// The print report: no navigation or buttons, the settings and the results.
+		if _, err := chromedp.Call(a.ctx, emulation.SetEmulatedMedia, emulation.SetEmulatedMediaParams{Media: "print"}); err != nil {
+			t.Fatal(err)
+		}
+		shown := eval[[]string](t, a, `['.tabs', '#run-plan', '#panel-settings', '#panel-results', '.caution']
+			.map((q) => q + ' ' + getComputedStyle(document.querySelector(q)).display)`)
+		if want := []string{".tabs none", "#run-plan none", "#panel-settings block", "#panel-results block", ".caution block"}; !slices.Equal(shown, want) {
+			t.Errorf("print: %v, want %v", shown, want)
+		}
+		a.checkClean(t, origin)
+	})
+
 	if *writeScreens {
 		t.Run("Screenshots", func(t *testing.T) { screenshots(t, chrome, srv.url(), root) })
+	}
+}
+
+// BenchmarkBrowserFirstResult measures the time from opening the page in a fresh profile to the
+// rendered results of the demo scenario, "Compute plan" pressed as soon as the app is ready: the
+// page's clock (performance.now) at the result, as ms/first-result. Each iteration starts a browser.
+func BenchmarkBrowserFirstResult(b *testing.B) {
+	chrome, srv, _ := startBrowserApp(b)
+	var total float64
+	for b.Loop() {
+		br := newBrowser(b, chrome, 1280, 800)
+		br.open(b, srv.url())
+		br.do(b, 10*time.Second, chromedp.Click(chromedp.CSS("#run-plan")))
+		br.waitFor(b, `!document.getElementById('results').hidden`, 90*time.Second)
+		total += eval[float64](b, br, `performance.now()`)
+		chromedp.Cancel(br.ctx)
+	}
+	b.ReportMetric(total/float64(b.N), "ms/first-result")
+}
+
+// BenchmarkBrowserPlan measures a plan computed in the browser's workers on 1 and 2 workers (the
+// team of workers is started before the clock runs): the demo scenario (adaptive Monte Carlo and
+// the planner) and a fixed 200000-trial run of it.
+func BenchmarkBrowserPlan(b *testing.B) {
+	chrome, srv, _ := startBrowserApp(b)
+	br := newBrowser(b, chrome, 1280, 800)
+	br.open(b, srv.url())
+	for _, sc := range []struct{ name, expr string }{
+		{"demo", `sizebudget.demo()`},
+		{"trials=200000", `({...sizebudget.demo(), trials: 200000})`},
+	} {
+		for _, workers := range []int{1, 2} {
+			b.Run(fmt.Sprintf("%s/workers=%d", sc.name, workers), func(b *testing.B) {
+				expr := fmt.Sprintf(`sizebudget.plan(%s, {workers: %d}).then((r) => r.elapsed_ms)`, sc.expr, workers)
+				eval[float64](b, br, expr) // start the team of this size
+				var ms float64
+				for b.Loop() {
+					ms += eval[float64](b, br, expr)
+				}
+				b.ReportMetric(ms/float64(b.N), "ms/plan")
+			})
+		}
 	}
 }
 
