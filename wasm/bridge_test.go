@@ -49,7 +49,9 @@ func TestSyncFuncRecoversPanics(t *testing.T) {
 	if msg := r.Get("error").Get("message").String(); !strings.Contains(msg, "internal error") {
 		t.Errorf("panic message %q", msg)
 	}
-	g := syncFunc(func([]js.Value) (any, error) { return nil, &uncertainty.FieldError{Field: "frames", Value: 2, Allowed: "3 to 100000"} })
+	g := syncFunc(func([]js.Value) (any, error) {
+		return nil, &uncertainty.FieldError{Field: "frames", Value: 2, Allowed: "3 to 100000"}
+	})
 	defer g.Release()
 	e := g.Invoke().Get("error")
 	if e.Get("field").String() != "frames" || !strings.Contains(e.Get("message").String(), "frames = 2") {
