@@ -673,7 +673,7 @@ func screenshots(t *testing.T, chrome, u, root string) {
 		setField(t, b, "reported_k", "2")
 		b.do(t, 10*time.Second, chromedp.Click(chromedp.CSS("#tab-review")), chromedp.Click(chromedp.CSS("#run-check")))
 		b.waitFor(t, `document.querySelector('#verdict .verdict') !== null`, 60*time.Second)
-		eval[bool](t, b, `(window.scrollTo(0, 0), true)`)
+		eval[bool](t, b, `(document.getElementById('run-check').scrollIntoView(), true)`)
 		shot("review")
 		eval[string](t, b, `sizebudget.sessions.save(sizebudget.demo(), 'Invented: demo beads', 'an invented scenario')`)
 		eval[string](t, b, `sizebudget.sessions.save({...sizebudget.demo(), medium: 'glycerol', glycerol_mass_fraction: 0.4}, 'Invented: beads in 40 % glycerol', '')`)

@@ -13,6 +13,7 @@ let state = {};
 let openSession = null; // {id, name} of the session the form came from
 let sessions = null;
 let restoring = false;
+let readyText = ''; // the status once the engine is ready
 
 // ---- status and toast ---------------------------------------------------------------------------
 
@@ -92,7 +93,7 @@ function control(f) {
   if (f.kind === 'check') {
     input = el('input', { type: 'checkbox', id, name: f.key, 'aria-describedby': described });
     return el('div', { class: 'field', 'data-key': f.key },
-      el('label', { class: 'check', for: id }, input, f.label, el('code', { class: 'key' }, f.key)), help, error);
+      el('label', { class: 'check', for: id }, input, f.label, el('code', { class: 'key', 'aria-hidden': 'true' }, f.key)), help, error);
   }
   if (f.kind === 'select') {
     input = el('select', { id, name: f.key, 'aria-describedby': described },
@@ -104,7 +105,7 @@ function control(f) {
     });
   }
   const label = el('label', { for: id }, f.label, f.unit ? el('span', { class: 'unit' }, f.unit) : null,
-    f.local ? null : el('code', { class: 'key' }, f.key));
+    f.local ? null : el('code', { class: 'key', 'aria-hidden': 'true' }, f.key));
   return el('div', { class: 'field', 'data-key': f.key }, label, input, help, readout, error);
 }
 
@@ -331,6 +332,7 @@ function registerServiceWorker() {
   });
   navigator.serviceWorker.addEventListener('controllerchange', () => {
     if (hadController) toast('A new version is ready.', 'Reload', () => window.location.reload());
+    else if (readyText) status(`${readyText} · works offline`, 'ok');
   });
 }
 
@@ -376,8 +378,9 @@ async function start() {
   document.addEventListener('visibilitychange', () => {
     if (document.visibilityState === 'hidden') saveDraft();
   });
+  readyText = `Ready · ${info.workers} worker${info.workers === 1 ? '' : 's'}`;
   const offline = navigator.serviceWorker && navigator.serviceWorker.controller ? ' · works offline' : '';
-  status(`Ready · ${info.workers} worker${info.workers === 1 ? '' : 's'}${offline}`, 'ok');
+  status(readyText + offline, 'ok');
   document.documentElement.dataset.ready = 'true';
 }
 
