@@ -81,11 +81,13 @@ type Analysis struct {
 	// both corrected for drift when Drift.Corrected.
 	LocalisationNM     float64 `json:"localisation_nm"`
 	LocalisationVarNM2 float64 `json:"localisation_variance_nm2"`
-	Dims               int     `json:"dims"`
-	TracksUsed         int     `json:"tracks_used"`
-	TracksDropped      int     `json:"tracks_dropped"`
-	Displacements      int     `json:"displacements"` // per axis, summed over the tracks
-	Positions          struct {
+	// LocalisationVarSENM2 is the standard error of σ̂² (see Analyze).
+	LocalisationVarSENM2 float64 `json:"localisation_variance_standard_error_nm2"`
+	Dims                 int     `json:"dims"`
+	TracksUsed           int     `json:"tracks_used"`
+	TracksDropped        int     `json:"tracks_dropped"`
+	Displacements        int     `json:"displacements"` // per axis, summed over the tracks
+	Positions            struct {
 		Min  int     `json:"min"`
 		Mean float64 `json:"mean"`
 		Max  int     `json:"max"`
@@ -155,6 +157,8 @@ type RadiusDistribution struct {
 // with weights N_i/ΣN (as core.CVE pools them):
 //
 //	D̂ = Σ N_i·D̂_i / ΣN,   σ̂² = Σ N_i·σ̂²_i / ΣN
+//
+// The standard error of σ̂² is that of the pooled quadratic form at D̂ and max(σ̂², 0) (see varS2).
 //
 // Drift: the mean velocity per axis, from the end-to-end displacements e_i = x_last − x_first,
 // with its standard error under free diffusion (variogram of Berglund 2010, at D̂ and σ̂²):
@@ -266,6 +270,9 @@ func Analyze(ctx context.Context, src TrackSource, settings Scenario, opt PlanOp
 	}
 	Dc := D - corr
 	a.DiffusionUM2PerS, a.LocalisationNM, a.LocalisationVarNM2 = Dc*1e12, math.Sqrt(s2c)*1e9, s2*1e18
+	a.LocalisationVarSENM2 = math.Sqrt(core.PooledVariance(acc.ns, func(N int) float64 {
+		return varS2(Dc, acc.dt, acc.blur, s2c, N, acc.dims)
+	})) * 1e18
 	if s2 < 0 {
 		a.Warnings = append(a.Warnings, fmt.Sprintf("localisation: the estimated σ² is negative (%.3g nm²): the noise is below what these tracks resolve, or the exposure (motion blur) is overstated; σ = 0 is used for the interval", s2*1e18))
 	}
@@ -319,6 +326,25 @@ func analysisScenario(in Scenario) Scenario {
 		PixelRelU: in.PixelRelU, Estimator: "cve", Coverage: in.Coverage, Trials: in.Trials, Seed: in.Seed,
 		ParticleDensity: in.ParticleDensity,
 	}.Defaults()
+}
+
+// varS2 is the exact variance, in m⁴, of the covariance-based σ̂² of one track of N ≥ 2 displacements
+// per axis averaged over dims axes, for free diffusion (D, s2) with frame interval dt and blur R.
+// σ̂² = R⟨dx²⟩ + (2R − 1)⟨dx dx₊₁⟩ is the quadratic form dxᵀ·Q·dx with Q = tridiag(q1, q0, q1),
+// q0 = R/N and q1 = (2R − 1)/(2(N − 1)), and the displacements have covariance tridiag(b, a, b),
+// a = 2DΔt(1 − 2R) + 2s2, b = −(s2 − 2RDΔt); both share the DST-I eigenvectors, so (as for
+// core.VarCVEExact, whose closed form is the same with the CVE's q0 and q1)
+//
+//	Var = 2·[N·q0²a² + 2(N−1)(q0²b² + 4q0q1·ab + q1²a²) + 2(3N−5)·q1²b²] / dims
+func varS2(D, dt, R, s2 float64, N, dims int) float64 {
+	return varTridiagForm(R/float64(N), (2*R-1)/(2*float64(N-1)), 2*D*dt*(1-2*R)+2*s2, -(s2-2*R*D*dt), N) / float64(dims)
+}
+
+// varTridiagForm is 2·tr(QΣQΣ) for N×N symmetric tridiagonal Toeplitz Q = tridiag(q1, q0, q1) and
+// Σ = tridiag(b, a, b), N ≥ 2, in closed form (see varS2).
+func varTridiagForm(q0, q1, a, b float64, N int) float64 {
+	n := float64(N)
+	return 2 * (n*q0*q0*a*a + 2*(n-1)*(q0*q0*b*b+4*q0*q1*a*b+q1*q1*a*a) + 2*(3*n-5)*q1*q1*b*b)
 }
 
 // engineLengths turns the histogram of track lengths (positions → tracks) into the scenario's length

@@ -198,6 +198,75 @@ func TestLagProductVariance(t *testing.T) {
 	}
 }
 
+func TestVarTridiagForm(t *testing.T) {
+	// The closed form of 2·tr(QΣQΣ) against the matrix product (gonum mat), an analytic identity
+	// (1e-12 relative); with the CVE's coefficients it is core.VarCVEExact times the axes.
+	for _, c := range []struct {
+		N            int
+		q0, q1, a, b float64
+		D, dt, R, s2 float64
+		dims         int
+	}{
+		{N: 2, q0: 0.3, q1: -0.2, a: 2, b: -0.4},
+		{N: 9, q0: 0.05, q1: -0.45, a: 1.1, b: 0.3},
+		{N: 40, q0: 1, q1: 0.5, a: 3, b: -1.4},
+	} {
+		S := mat.NewSymDense(c.N, nil)
+		Q := mat.NewSymDense(c.N, nil)
+		for i := range c.N {
+			S.SetSym(i, i, c.a)
+			Q.SetSym(i, i, c.q0)
+			if i+1 < c.N {
+				S.SetSym(i, i+1, c.b)
+				Q.SetSym(i, i+1, c.q1)
+			}
+		}
+		var QS, QSQS mat.Dense
+		QS.Mul(Q, S)
+		QSQS.Mul(&QS, &QS)
+		want := 2 * mat.Trace(&QSQS)
+		if got := varTridiagForm(c.q0, c.q1, c.a, c.b, c.N); math.Abs(got-want) > 1e-12*math.Abs(want) {
+			t.Errorf("N %d: closed form %.15g, 2·tr(QΣQΣ) %.15g", c.N, got, want)
+		}
+	}
+	D, dt, R, s2 := 4.4e-12, 0.033, 0.05, 1.6e-15
+	for _, N := range []int{2, 5, 30} {
+		a, b := 2*D*dt*(1-2*R)+2*s2, -(s2 - 2*R*D*dt)
+		got := varTridiagForm(1/(2*float64(N)*dt), 1/(2*float64(N-1)*dt), a, b, N) / 2
+		if want := core.VarCVEExact(D, dt, R, s2, N, 2); math.Abs(got-want) > 1e-12*want {
+			t.Errorf("N %d: CVE variance %.15g, core.VarCVEExact %.15g", N, got, want)
+		}
+	}
+}
+
+func TestLocalisationStandardError(t *testing.T) {
+	// The standard error of σ̂² is right: over repeated data sets, the spread of σ̂² agrees with the
+	// exact standard deviation at the true D and σ² (variance ratio within 4·√(2/(n−1))).
+	s := analysisSettings()
+	r := rand.New(rand.NewPCG(19, 20))
+	rec := demoRecording(t, s, 150, 60e-9)
+	lengths := []int{5, 9, 20, 6, 33, 12, 50}
+	const n = 3000
+	var sum, sum2 float64
+	for range n {
+		acc := accumulate(t, s, simulateTracks(r, rec, lengths))
+		v := acc.sumNS2 / float64(acc.sumN)
+		sum, sum2 = sum+v, sum2+v*v
+	}
+	ns := make([]int, len(lengths))
+	for i, l := range lengths {
+		ns[i] = l - 1
+	}
+	want := core.PooledVariance(ns, func(N int) float64 { return varS2(rec.D, rec.Interval, rec.Blur(), rec.Sigma*rec.Sigma, N, 2) })
+	got := (sum2 - sum*sum/n) / (n - 1)
+	if tol := 4 * math.Sqrt(2.0/(n-1)); math.Abs(got/want-1) > tol {
+		t.Errorf("Var σ̂² = %.4g m⁴ over the data sets, exact %.4g (ratio off by more than %.3f)", got, want, tol)
+	}
+	if m := sum / n; math.Abs(m-rec.Sigma*rec.Sigma) > 4*math.Sqrt(want/n) {
+		t.Errorf("σ̂² averages %.4g m², true %.4g", m, rec.Sigma*rec.Sigma)
+	}
+}
+
 // accumulate runs the per-track pass of the analysis over tracks.
 func accumulate(t *testing.T, s Scenario, tracks []core.Track) *accumulator {
 	t.Helper()
