@@ -392,6 +392,15 @@ func TestBrowserApp(t *testing.T) {
 		}
 	})
 
+	t.Run("Unreachable", func(t *testing.T) {
+		// 0.5 % is below what temperature, viscosity and calibration allow on their own (the demo's
+		// budget: 0.75 %, 1 % and 1 % relative standard uncertainty).
+		setField(t, b, "target_relative_expanded_uncertainty", "0.005")
+		b.do(t, 10*time.Second, chromedp.Click(chromedp.CSS("#run-plan")))
+		b.waitFor(t, `document.getElementById('results').textContent.includes('out of reach')`, 60*time.Second)
+		setField(t, b, "target_relative_expanded_uncertainty", "0.05")
+	})
+
 	var exported string
 	t.Run("SessionsSurviveReload", func(t *testing.T) {
 		setField(t, b, "tracks", "250")
@@ -519,6 +528,8 @@ func TestBrowserApp(t *testing.T) {
 		u := newBrowser(t, chrome, 1280, 800)
 		// A database as version 1 of the app left it: only the sessions store.
 		u.do(t, 20*time.Second, chromedp.Navigate(srv.url()+"manifest.webmanifest"))
+		// And a cache of an older build, which the service worker must remove when it activates.
+		eval[bool](t, u, `caches.open('sizebudget-0ldbuild').then((c) => c.put('old.txt', new Response('old'))).then(() => true)`)
 		doc, _ := uncertainty.Demo().Marshal()
 		eval[bool](t, u, `new Promise((resolve, reject) => {
 			const req = indexedDB.open('sizebudget', 1);
@@ -541,6 +552,11 @@ func TestBrowserApp(t *testing.T) {
 		v := eval[int](t, u, `new Promise((resolve) => { const r = indexedDB.open('sizebudget'); r.onsuccess = () => { resolve(r.result.version); r.result.close(); }; })`)
 		if v != 2 {
 			t.Errorf("database version %d after the upgrade, want 2", v)
+		}
+		u.waitFor(t, `navigator.serviceWorker.controller !== null`, 20*time.Second)
+		keys := eval[[]string](t, u, `caches.keys()`)
+		if want := []string{"sizebudget-" + srv.app.Version()}; !slices.Equal(keys, want) {
+			t.Errorf("caches after activation: %v, want %v (the old build's cache removed)", keys, want)
 		}
 		u.checkClean(t, origin)
 	})

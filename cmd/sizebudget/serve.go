@@ -377,7 +377,7 @@ func cachedEngine(root string, rebuild bool, log io.Writer) (string, error) {
 		return "", err
 	}
 	cache, err := os.UserCacheDir()
-	if err != nil {
+	if err != nil || os.MkdirAll(filepath.Join(cache, "sizebudget"), 0o755) != nil {
 		cache = os.TempDir()
 	}
 	dir := filepath.Join(cache, "sizebudget", "engine-"+key)
@@ -437,5 +437,12 @@ func buildEngine(root, dir string) error {
 	if err := os.RemoveAll(dir); err != nil {
 		return err
 	}
-	return os.Rename(tmp, dir)
+	if err := os.Rename(tmp, dir); err != nil {
+		// Another serve may have finished the same build meanwhile: its folder is complete.
+		if _, serr := os.Stat(filepath.Join(dir, "wasm_exec.js")); serr == nil {
+			return nil
+		}
+		return err
+	}
+	return nil
 }
