@@ -90,7 +90,7 @@ func TestAnalyzeCoverage(t *testing.T) {
 	}
 	n := 200
 	if testing.Short() {
-		n = 60
+		n = 30 // a smoke test (the WebAssembly run of CI); acceptance region 23–30
 	}
 	lo, hi := acceptance(n, 0.95, 0.001)
 	if b := (distuv.Binomial{N: float64(n), P: 0.95}); b.CDF(float64(hi))-b.CDF(float64(lo-1)) < 0.999 {
