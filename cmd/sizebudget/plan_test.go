@@ -8,12 +8,14 @@ import (
 	"flag"
 	"math"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"reflect"
 	"slices"
 	"strconv"
 	"strings"
 	"testing"
+	"time"
 
 	"sizebudget/core"
 	"sizebudget/uncertainty"
@@ -371,6 +373,39 @@ func TestPlanInterrupted(t *testing.T) {
 	checkDataReport(t, err, "interrupted")
 	if out.Len() != 0 {
 		t.Errorf("wrote %q", out.String())
+	}
+}
+
+// TestPlanBinaryInterrupt runs the built command on a long adaptive Monte Carlo (1000 positions per
+// track, about a minute) and interrupts it as Ctrl-C would: it must stop, exit with status 1 and say
+// so on one line, with nothing on stdout.
+func TestPlanBinaryInterrupt(t *testing.T) {
+	if testing.Short() {
+		t.Skip("builds the binary")
+	}
+	goTool, err := exec.LookPath("go")
+	if err != nil {
+		t.Skip("no go command in PATH")
+	}
+	bin := filepath.Join(t.TempDir(), "sizebudget")
+	if out, err := exec.Command(goTool, "build", "-o", bin, ".").CombinedOutput(); err != nil {
+		t.Fatalf("go build: %v\n%s", err, out)
+	}
+	cmd := exec.Command(bin, "plan", "-frames", "1000", "-target", "0", "-json")
+	var out, errb bytes.Buffer
+	cmd.Stdout, cmd.Stderr = &out, &errb
+	if err := cmd.Start(); err != nil {
+		t.Fatal(err)
+	}
+	time.Sleep(time.Second) // long enough for the signal handler to be installed, far shorter than the run
+	if err := cmd.Process.Signal(os.Interrupt); err != nil {
+		t.Fatal(err)
+	}
+	err = cmd.Wait()
+	var exit *exec.ExitError
+	if !errors.As(err, &exit) || exit.ExitCode() != 1 || out.Len() != 0 ||
+		errb.String() != "sizebudget: interrupted: the Monte Carlo was stopped before it finished; nothing was written\n" {
+		t.Errorf("err %v, stdout %d bytes, stderr %q", err, out.Len(), errb.String())
 	}
 }
 
