@@ -35,6 +35,15 @@ const MaxLineBytes = 1 << 20
 // comments and blank lines.
 var ErrNoHeader = errors.New("no header line: the file is empty or holds only comments and blank lines")
 
+// Errors of a header whose columns cannot be read with the options given, wrapped by an *Error, so
+// that a caller can say which of its settings is missing.
+var (
+	ErrNoUnit       = errors.New("the position columns carry no unit and none was given (Options.Unit): name them x_nm, x_um or x_px, or give the unit")
+	ErrUnitConflict = errors.New("two length units (Options.Unit and the header) differ")
+	ErrNoPixelSize  = errors.New("positions in pixels need the pixel size (Options.PixelSize)")
+	ErrNoInterval   = errors.New("times in s need the frame interval to become frame numbers (Options.Interval)")
+)
+
 // Order says how the rows of a file are arranged; see the package documentation for what each
 // order costs in memory.
 type Order int
@@ -415,23 +424,23 @@ func (r *Reader) parseHeader(text []byte) error {
 	}
 	if r.cols.frame < 0 && !(r.opt.Interval > 0) {
 		return &Error{Line: r.line, Column: r.cols.t + 1, Name: r.header[r.cols.t],
-			Err: errors.New("times in s need the frame interval to become frame numbers (Options.Interval)")}
+			Err: ErrNoInterval}
 	}
 	ucol := r.cols.pos[0]
 	switch {
 	case unit == "" && r.opt.Unit == "":
 		return &Error{Line: r.line, Column: ucol + 1, Name: r.header[ucol],
-			Err: errors.New("the position columns carry no unit and none was given (Options.Unit): name them x_nm, x_um or x_px, or give the unit")}
+			Err: ErrNoUnit}
 	case unit == "":
 		unit = r.opt.Unit
 	case r.opt.Unit != "" && (lengthUnits[unit] != lengthUnits[r.opt.Unit] || (r.opt.Unit == "px") != (unit == "px")):
 		return &Error{Line: r.line, Column: ucol + 1, Name: r.header[ucol],
-			Err: fmt.Errorf("the header gives the unit %s, but %s was given (Options.Unit)", unit, r.opt.Unit)}
+			Err: fmt.Errorf("%w: the header gives %s, the options %s", ErrUnitConflict, unit, r.opt.Unit)}
 	}
 	scale, ok := r.opt.unitScale(unit)
 	if !ok {
 		return &Error{Line: r.line, Column: ucol + 1, Name: r.header[ucol],
-			Err: errors.New("positions in pixels need the pixel size (Options.PixelSize)")}
+			Err: ErrNoPixelSize}
 	}
 	r.scale, r.stats.Unit = scale, unit
 	return nil

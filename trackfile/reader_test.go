@@ -217,9 +217,9 @@ func TestReaderErrors(t *testing.T) {
 		{"short_row.csv", Options{}, 4, 0, "", "3 fields where the header (line 1) has 4"},
 		{"nan.csv", Options{}, 2, 3, "x_um", `"NaN" is not a finite number`},
 		{"bare.csv", Options{}, 2, 3, "x", "carry no unit"},
-		{"basic.csv", Options{Unit: "nm"}, 3, 3, "x_um", "the header gives the unit um, but nm was given"},
+		{"basic.csv", Options{Unit: "nm"}, 3, 3, "x_um", "differ: the header gives um, the options nm"},
 		{"pixels.tsv", Options{}, 2, 3, "x_px", "pixel size"},
-		{"pixels.tsv", Options{Unit: "um", PixelSize: 1e-7}, 2, 3, "x_px", "the header gives the unit px, but um was given"},
+		{"pixels.tsv", Options{Unit: "um", PixelSize: 1e-7}, 2, 3, "x_px", "differ: the header gives px, the options um"},
 		{"times.csv", Options{}, 2, 2, "t_s", "frame interval"},
 		{"times.csv", Options{Interval: 0.05}, 5, 2, "t_s", "0.40 of a frame off the grid of Δt = 0.05 s that starts at 0.499 s"},
 	}

@@ -193,6 +193,9 @@ type RadiusDistribution struct {
 // recorded lengths (exactly, with core.Spectral; at least 4000 tracks in the proportions of the
 // recorded lengths, seeded from settings.seed) and scales them to the number of tracks used.
 //
+// The tracks are read once; Analyze keeps a few numbers per track (memory proportional to the number
+// of tracks, not of positions).
+//
 // Errors: the settings' *FieldError or *core.RangeError, the source's errors, core.ErrNoTracks (no
 // tracks), core.ErrDimsDiffer, core.ErrNonFinite, a *core.RangeError on "points" for a track with
 // fewer than MinFrames positions, an error when D̂ ≤ 0, and those of Plan.

@@ -163,6 +163,17 @@ func analyzeCommand(ctx context.Context, args []string, stdout, stderr io.Writer
 	}
 	r, err := trackfile.NewReader(in, ro)
 	if err != nil {
+		for _, hint := range []struct {
+			err  error
+			note string
+		}{
+			{trackfile.ErrNoUnit, "give -unit"}, {trackfile.ErrUnitConflict, "-unit differs from the header"},
+			{trackfile.ErrNoPixelSize, "give -pixel"}, {trackfile.ErrNoInterval, "give -interval or -fps"},
+		} {
+			if errors.Is(err, hint.err) {
+				err = &notedError{err: err, note: hint.note}
+			}
+		}
 		return fmt.Errorf("%s: %w", *path, err)
 	}
 	a, err := uncertainty.Analyze(ctx, r, settings, opt)

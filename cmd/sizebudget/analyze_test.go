@@ -216,6 +216,8 @@ func TestAnalyzeDataErrors(t *testing.T) {
 	}{
 		{append(base, bad), bad + ": trackfile: line 3, column 3 (x_um): \"x\" is not a number"},
 		{append(base, noUnit), noUnit + ": trackfile: line 1, column 3 (x): the position columns carry no unit"},
+		{append(base, noUnit), "[give -unit]"},
+		{append(base, noUnit, "-unit", "px"), "[give -pixel]"},
 		{append(base, short), "no tracks to analyse (1 dropped as too short)"},
 		{append(base, filepath.Join(dir, "missing.csv")), "no such file"},
 	}
