@@ -35,6 +35,8 @@ var commands = map[string]command{
 	"plan":      {runPlan, "coverage interval, uncertainty budget and the frames per track a target needs"},
 	"check":     {runCheck, "review a reported radius ± uncertainty against what its settings can achieve"},
 	"serve":     {runServe, "serve the offline browser app on 127.0.0.1 (builds the WebAssembly engine when needed)"},
+	"analyze":   {runAnalyze, "radius with its coverage interval from recorded tracks, with drift and free-diffusion checks"},
+	"simulate":  {runSimulate, "write a track file of INVENTED data from a scenario, seeded, to try analyze"},
 }
 
 // A usageError reports a command line that cannot be understood: an unknown command or flag, a

@@ -103,7 +103,7 @@ func checkUsageReport(t *testing.T, err error, cmd, text string) {
 
 func TestRunDispatch(t *testing.T) {
 	_, _, err := runArgs()
-	checkUsageReport(t, err, "sizebudget", "missing command: one of diffusion, viscosity")
+	checkUsageReport(t, err, "sizebudget", "missing command: one of "+commandList())
 	_, _, err = runArgs("sizes")
 	checkUsageReport(t, err, "sizebudget", `unknown command "sizes"`)
 
