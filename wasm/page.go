@@ -20,9 +20,9 @@ type page struct {
 	problem string // why the in-memory fallback is used
 }
 
-// installPage installs globalThis.sizebudgetCore for site/static/api.js. Functions whose name ends in
-// nothing special return at once; the session functions return Promises. Scenario documents, sessions
-// and results travel as JSON text.
+// installPage installs globalThis.sizebudgetCore for site/static/api.js: demo and validate return at
+// once; open, the session functions, export, import and the draft return Promises. Scenario
+// documents, sessions and reports travel as JSON text.
 func installPage(g js.Value) {
 	p := &page{}
 	core := js.Global().Get("Object").New()

@@ -78,7 +78,22 @@ class Team {
   spawn(name) {
     const w = new Worker('worker.js', { name });
     this.workers.push(w);
+    // A worker that dies (out of memory, say) fails the job in progress and the team.
+    w.addEventListener('error', (e) => this.fail(new Error(`sizebudget: a worker failed: ${e.message || 'unknown error'}`)));
+    w.addEventListener('message', (e) => {
+      if (e.data && e.data.type === 'fatal') this.fail(new Error(`sizebudget: a worker failed: ${e.data.message}`));
+    });
     return w;
+  }
+
+  fail(err) {
+    this.broken = true;
+    if (this.job) {
+      const job = this.job;
+      this.job = null;
+      job.reject(err);
+    }
+    if (team === this) team = null;
   }
 
   async start() {
@@ -148,7 +163,7 @@ let jobs = 0;
 let current = null; // {cancel}
 
 function getTeam(size) {
-  if (!team || teamSize !== size) {
+  if (!team || team.broken || teamSize !== size) {
     if (team) team.terminate();
     team = new Team(size);
     teamSize = size;
@@ -182,7 +197,13 @@ async function run(kind, scenario, opts = {}) {
     opts.signal.addEventListener('abort', onAbort, { once: true });
   }
   try {
-    await t.ready;
+    try {
+      await t.ready;
+    } catch (e) {
+      t.fail(e);
+      t.terminate();
+      throw e;
+    }
     if (cancelled) throw abortError();
     const started = performance.now();
     const onProgress = typeof opts.onProgress === 'function' ? opts.onProgress : () => {};
