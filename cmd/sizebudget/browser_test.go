@@ -462,6 +462,10 @@ func TestBrowserApp(t *testing.T) {
 			t.Errorf("compare: differing rows %v; want frames and tracks", differs)
 		}
 		eval[any](t, b, fmt.Sprintf(`sizebudget.sessions.remove(%q)`, dup))
+		one := eval[[]string](t, b, fmt.Sprintf(`sizebudget.exportOne(%q).then((text) => JSON.parse(text).sessions.map((s) => s.id))`, second))
+		if !slices.Equal(one, []string{second}) {
+			t.Errorf("exportOne: sessions %v, want [%s]", one, second)
+		}
 		exported = eval[string](t, b, `sizebudget.exportAll()`)
 	})
 
