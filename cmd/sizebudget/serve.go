@@ -265,16 +265,19 @@ func findEngine(dir string, rebuild bool, log io.Writer) (fs.FS, error) {
 	if dir != "" {
 		return os.DirFS(dir), nil
 	}
-	root, err := moduleRoot()
-	if err == nil {
+	static := site.Files()
+	_, embedErr := fs.Stat(static, "main.wasm")
+	if root, err := moduleRoot(); err == nil {
 		built, err := cachedEngine(root, rebuild, log)
-		if err != nil {
+		if err == nil {
+			return os.DirFS(built), nil
+		}
+		if embedErr != nil || rebuild {
 			return nil, err
 		}
-		return os.DirFS(built), nil
+		fmt.Fprintf(log, "sizebudget: %v\nsizebudget: serving the engine built into this program instead\n", err)
 	}
-	static := site.Files()
-	if _, err := fs.Stat(static, "main.wasm"); err == nil {
+	if embedErr == nil {
 		return static, nil
 	}
 	return nil, errors.New("serve: the WebAssembly engine is not built into this program and no source is at hand: " +
