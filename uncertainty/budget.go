@@ -91,7 +91,10 @@ func (u *setup) budget(groups []LengthGroup) Budget {
 	b := Budget{Sources: src, RelU: math.Sqrt(sum)}
 	nu := math.Inf(1)
 	if wsInv > 0 {
-		nu = sum * sum / wsInv
+		// Below one degree of freedom Student's t has no variance and its quantiles run to infinity;
+		// JCGM 100 G.4.1 truncates ν_eff to an integer, we keep at least 1 (the coverage factor is then
+		// t_{0.975}(1) = 12.7 at 95 %, and the Monte Carlo interval is the one to trust).
+		nu = math.Max(1, sum*sum/wsInv)
 	}
 	b.EffectiveDOF = DOF(nu)
 	b.K = coverageFactor(u.p, nu)

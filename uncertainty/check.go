@@ -89,12 +89,16 @@ func Check(ctx context.Context, s Scenario, opt PlanOptions) (*CheckResult, erro
 		FixedRelU:      zp * math.Sqrt(fixed),
 		Plan:           pr}
 	pct := func(x float64) string { return fmt.Sprintf("%.3g %%", 100*x) }
-	settings := fmt.Sprintf("%d tracks of %d frames with the %s estimator", s.Tracks, s.Frames, s.Estimator)
+	shape := fmt.Sprintf("%d tracks of %d frames", s.Tracks, s.Frames)
+	if len(s.TrackLengths) > 0 {
+		shape = fmt.Sprintf("%d tracks of up to %d frames", s.Tracks, s.Frames)
+	}
+	settings := shape + " with the " + s.Estimator + " estimator"
 	switch {
 	case c.ReportedRelU < c.BoundRelU:
 		c.Verdict = VerdictBelowBound
-		c.Explanation = fmt.Sprintf("The reported %s (at %g %% coverage) is below %s, the least any unbiased estimator can reach from %d tracks of %d frames (Cramér–Rao bound on D plus temperature, viscosity and calibration). It is not achievable as stated.",
-			pct(c.ReportedRelU), 100*s.Coverage, pct(c.BoundRelU), s.Tracks, s.Frames)
+		c.Explanation = fmt.Sprintf("The reported %s (at %g %% coverage) is below %s, the least any unbiased estimator can reach from %s (Cramér–Rao bound on D plus temperature, viscosity and calibration). It is not achievable as stated.",
+			pct(c.ReportedRelU), 100*s.Coverage, pct(c.BoundRelU), shape)
 	case c.ReportedRelU < c.AchievableRelU:
 		c.Verdict = VerdictOptimistic
 		c.Explanation = fmt.Sprintf("The reported %s is above the bound %s but below the %s that %s achieves (Monte Carlo); it is optimistic unless a better estimator was used.",

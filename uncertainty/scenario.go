@@ -5,11 +5,15 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"strconv"
 	"strings"
 )
 
 // Format is the format identifier of the scenario document this version writes.
 const Format = "sizebudget/scenario/1"
+
+// formatVersion is the version number in Format.
+const formatVersion = 1
 
 // formatPrefix is what every version of the scenario document starts its "format" with.
 const formatPrefix = "sizebudget/scenario/"
@@ -121,7 +125,11 @@ func ParseScenario(data []byte) (Scenario, error) {
 		return Scenario{}, fmt.Errorf("scenario: format = %q is not a sizebudget scenario; expected %q", f, Format)
 	}
 	if f != Format {
-		return Scenario{}, fmt.Errorf("scenario: format = %q is newer than this version reads (%q); update sizebudget", f, Format)
+		v, err := strconv.Atoi(strings.TrimPrefix(f, formatPrefix))
+		if err == nil && v > formatVersion {
+			return Scenario{}, fmt.Errorf("scenario: format = %q is newer than this version reads (%q); update sizebudget", f, Format)
+		}
+		return Scenario{}, fmt.Errorf("scenario: format = %q is not a version of the scenario document; expected %q", f, Format)
 	}
 	dec := json.NewDecoder(bytes.NewReader(data))
 	dec.DisallowUnknownFields()

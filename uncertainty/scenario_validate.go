@@ -156,8 +156,9 @@ func (s Scenario) Validate() error {
 	if err := closed("target_relative_expanded_uncertainty", s.TargetRelU, 0, 1); err != nil {
 		return err
 	}
-	if s.Trials != 0 && (s.Trials < 1000 || s.Trials > MaxTrials) {
-		return &FieldError{Field: "trials", Value: s.Trials, Allowed: fmt.Sprintf("0 (adaptive) or 1000 to %d", MaxTrials)}
+	if least := max(1000, MinTrials(s.Coverage)); s.Trials != 0 && (s.Trials < least || s.Trials > MaxTrials) {
+		return &FieldError{Field: "trials", Value: s.Trials, Allowed: fmt.Sprintf("0 (adaptive) or %d to %d", least, MaxTrials),
+			Why: fmt.Sprintf("JCGM 101 7.2.2 asks for at least 1/(1 − p) × 100 trials at coverage %g", s.Coverage)}
 	}
 	if err := closed("particle_density_kg_per_m3", s.ParticleDensity, 0, 30000); err != nil {
 		return err
@@ -172,7 +173,7 @@ func (s Scenario) Validate() error {
 		return err
 	}
 	T := s.TemperatureC + 273.15
-	for _, t := range []float64{T - s.tempHalfRange(), T, T + s.tempHalfRange()} {
+	for _, t := range []float64{T, T - s.tempHalfRange(), T + s.tempHalfRange()} {
 		if _, err := m.Viscosity(t); err != nil {
 			var re *core.RangeError
 			if errors.As(err, &re) && t != T {
