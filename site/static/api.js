@@ -38,6 +38,7 @@ let compiled = null;
 async function loadCore() {
   const response = fetch('main.wasm');
   compiled = await WebAssembly.compileStreaming(response);
+  prewarm(); // the workers start while the page's own instance opens the sessions
   const go = new Go();
   const instance = await WebAssembly.instantiate(compiled, go.importObject);
   const installed = new Promise((resolve) => {
@@ -234,7 +235,6 @@ const parse = async (p) => JSON.parse(await p);
 
 const ready = (async () => {
   const opened = await loadCore();
-  prewarm();
   return { version: version(), storage: opened.storage, storageProblem: opened.problem || '', workers: defaultWorkers() };
 })();
 
