@@ -98,6 +98,12 @@ func (q ChiSquaredSum) Survival(x float64) float64 {
 	return up
 }
 
+// Tails returns P(Q ≤ x) and P(Q > x) from one inversion: the smaller one is computed directly and
+// keeps its accuracy relative to itself, the other is its complement.
+func (q ChiSquaredSum) Tails(x float64) (lower, upper float64) {
+	return q.prepare().tails(x)
+}
+
 // Prob returns the probability density of Q at x (0 for the point mass of a sum without terms).
 func (q ChiSquaredSum) Prob(x float64) float64 {
 	return q.prepare().density(x)
@@ -189,14 +195,40 @@ func (cs *chiSum) sortRuns() {
 	}
 }
 
-// cgfReal returns K(s) − s·Const and its first two derivatives at a real s inside the strip.
+// cgfReal returns K(s) − s·Const and its first two derivatives at a real s inside the strip. The
+// logarithms are taken of the product over each run of terms, its binary exponent split off.
 func (cs *chiSum) cgfReal(s float64) (k, k1, k2 float64) {
-	for i, w := range cs.w {
-		g := 1 - 2*w*s
-		nu, lam := cs.nu[i], cs.lam[i]
-		k += -0.5*nu*math.Log(g) + lam*w*s/g
-		k1 += nu*w/g + lam*w/(g*g)
-		k2 += 2*nu*w*w/(g*g) + 4*lam*w*w/(g*g*g)
+	for _, r := range cs.runs {
+		prod, exp := 1.0, 0
+		var a1, a2 float64
+		for i := r.start; i < r.end; i++ {
+			w := cs.w[i]
+			g := 1 - 2*w*s
+			prod *= g
+			q := w / g
+			a1 += q
+			a2 += q * q
+			if (i-r.start)%16 == 15 {
+				var e int
+				prod, e = math.Frexp(prod)
+				exp += e
+			}
+		}
+		k -= 0.5 * r.nu * (math.Log(prod) + float64(exp)*math.Ln2)
+		k1 += r.nu * a1
+		k2 += 2 * r.nu * a2
+	}
+	if cs.nonCentral {
+		for i, lam := range cs.lam {
+			if lam == 0 {
+				continue
+			}
+			w := cs.w[i]
+			g := 1 - 2*w*s
+			k += lam * w * s / g
+			k1 += lam * w / (g * g)
+			k2 += 4 * lam * w * w / (g * g * g)
+		}
 	}
 	return k, k1, k2
 }
@@ -276,7 +308,10 @@ func (cs *chiSum) saddle(z float64) float64 {
 			lo *= 2
 		}
 	}
-	s := 0.0
+	// Start from the saddle point of the normal law with the same mean and variance; the saddle is
+	// needed to a fraction of its width only (any point of the strip gives the exact answer).
+	_, k1, k2 := cs.cgfReal(0)
+	s := (z - k1) / k2
 	if !(s > lo && s < hi) {
 		s = (lo + hi) / 2
 	}
@@ -288,7 +323,7 @@ func (cs *chiSum) saddle(z float64) float64 {
 		} else {
 			lo = s
 		}
-		if math.Abs(d) <= 1e-12*cs.sd {
+		if math.Abs(d) <= 1e-3*math.Sqrt(k2) {
 			return s
 		}
 		next := s - d/k2

@@ -41,6 +41,9 @@ func TestChiSquaredSumSingleTerm(t *testing.T) {
 					wantLo, wantUp = wantUp, wantLo
 				}
 				lo, up := q.CDF(x), q.Survival(x)
+				if l2, u2 := q.Tails(x); l2 != lo || u2 != up {
+					t.Errorf("k %g, w %g, p %g: Tails %g, %g differ from CDF, Survival", k, w, p, l2, u2)
+				}
 				if e := math.Max(tailErr(lo, wantLo), tailErr(up, wantUp)); e > imhofTol {
 					t.Errorf("k %g, w %g, p %g: CDF %.15g, Survival %.15g, want %.15g, %.15g (error %.2g)", k, w, p, lo, up, wantLo, wantUp, e)
 				}
