@@ -19,8 +19,14 @@ const plannerTrials = 10000
 
 // PlanOptions control Plan and Check.
 type PlanOptions struct {
-	// Engine forces the track-statistics engine ("direct" or "spectral"); "" picks the fastest exact one.
+	// Engine forces the track-statistics engine ("direct", "spectral" or "exact"); "" picks the fastest
+	// exact Monte Carlo sampler (BestEngine). With "exact" the reported intervals are those of the law
+	// computed without sampling (ExactLaw), and the Monte Carlo, drawn from that law by inversion, is
+	// reported beside them (JCGM 101) and checked against it (PlanResult.Exact).
 	Engine string
+	// CrossCheck also computes the exact law when the scenario allows it (ExactLaw) and reports it, with
+	// the agreement of the Monte Carlo, in PlanResult.Exact. Implied by Engine "exact".
+	CrossCheck bool
 	// Workers is the number of goroutines of the native Monte Carlo; 0 = all processors.
 	Workers int
 	// Progress, if not nil, is called between Monte Carlo chunks with the trials done and planned so far,
@@ -61,6 +67,8 @@ type PlanResult struct {
 	Warnings             []string      `json:"warnings"`
 	Curve                []CurvePoint  `json:"curve"`
 	Histogram            Histogram     `json:"histogram"`
+	// Exact is the law computed without sampling, when the engine is "exact" or CrossCheck asked for it.
+	Exact *ExactSummary `json:"exact,omitempty"`
 
 	values []float64 // sorted Monte Carlo values, nm (for charts)
 }
@@ -137,15 +145,32 @@ func Plan(ctx context.Context, s Scenario, opt PlanOptions) (*PlanResult, error)
 	b := u.budget(u.groups)
 	res.Budget = b.Sources
 	res.DominantSource = dominant(b)
-	mc, engine, err := runMC(ctx, s, 0, 0, s.Trials, opt, pr)
+	mc, engine, law, err := runMCLaw(ctx, s, 0, 0, s.Trials, opt, pr)
 	if err != nil {
 		return nil, err
 	}
+	if law == nil && opt.CrossCheck && exactEligible(s) == nil {
+		if law, err = newExactLaw(u); err != nil {
+			return nil, err
+		}
+	}
 	res.IntervalNM = [2]float64{mc.Low, mc.High}
 	res.ShortestIntervalNM = [2]float64{mc.ShortLow, mc.ShortHigh}
-	res.RelExpanded = (mc.High - mc.Low) / (2 * res.RadiusNM)
+	validated := mc
+	if law != nil {
+		ex := law.summary(mc, u.p)
+		res.Exact = &ex
+		if engine == EngineExact {
+			res.IntervalNM, res.ShortestIntervalNM = ex.IntervalNM, ex.ShortestIntervalNM
+			validated = &Result{Low: ex.IntervalNM[0], High: ex.IntervalNM[1], StdUnc: ex.StdUncNM}
+		}
+		if !ex.MonteCarloAgrees {
+			res.Warnings = append(res.Warnings, fmt.Sprintf("Monte Carlo: its interval ends differ from the exact law's by %.3g standard errors (more than 4)", ex.MonteCarloDeviationSE))
+		}
+	}
+	res.RelExpanded = (res.IntervalNM[1] - res.IntervalNM[0]) / (2 * res.RadiusNM)
 	ndig := mc.NDig
-	val := ValidateGUM(mc, res.RadiusNM, b.RelExpanded*res.RadiusNM, ndig)
+	val := ValidateGUM(validated, res.RadiusNM, b.RelExpanded*res.RadiusNM, ndig)
 	res.GUM = GUMResult{RelU: b.RelU, K: b.K, EffectiveDOF: b.EffectiveDOF, IntervalNM: b.IntervalNM, RelExpanded: b.RelExpanded,
 		Validated: val.Passed, DLowNM: val.DLow, DHighNM: val.DHigh, ToleranceNM: val.Delta}
 	nonpos, _ := slices.BinarySearch(mc.Values, math.SmallestNonzeroFloat64)
@@ -178,12 +203,27 @@ func dominant(b Budget) string {
 	return name
 }
 
-// runMC runs the Monte Carlo of the scenario at frames × tracks; trials 0 = adaptive.
+// runMC runs the Monte Carlo of the scenario at frames × tracks; trials 0 = adaptive. With the exact
+// engine, the Result's interval ends, mean and standard uncertainty are replaced by the exact law's (its
+// Values stay the Monte Carlo draws from that law), so that the planner compares exact figures.
 func runMC(ctx context.Context, s Scenario, frames, tracks, trials int, opt PlanOptions, pr *progress) (*Result, string, error) {
+	res, engine, law, err := runMCLaw(ctx, s, frames, tracks, trials, opt, pr)
+	if err != nil || law == nil {
+		return res, engine, err
+	}
+	patched := *res
+	sym, short := law.Intervals(res.Coverage)
+	patched.Low, patched.High, patched.ShortLow, patched.ShortHigh = sym[0], sym[1], short[0], short[1]
+	patched.Mean, patched.StdUnc = law.Mean(), law.StdUnc()
+	return &patched, engine, nil
+}
+
+// runMCLaw is runMC without the replacement, also returning the exact law of the exact engine.
+func runMCLaw(ctx context.Context, s Scenario, frames, tracks, trials int, opt PlanOptions, pr *progress) (*Result, string, *ExactLaw, error) {
 	spec := TrialSpec{Scenario: s, Frames: frames, Tracks: tracks, Engine: opt.Engine}
-	m, engine, err := TrialModel(spec)
+	m, engine, law, err := trialModel(spec)
 	if err != nil {
-		return nil, "", err
+		return nil, "", nil, err
 	}
 	spec.Engine = engine
 	mo := Options{Coverage: s.Coverage, Trials: trials, Seed: s.Seed, Workers: opt.Workers, Progress: pr.phase()}
@@ -195,9 +235,9 @@ func runMC(ctx context.Context, s Scenario, frames, tracks, trials int, opt Plan
 	}
 	pr.close()
 	if err != nil {
-		return nil, "", err
+		return nil, "", nil, err
 	}
-	return res, engine, nil
+	return res, engine, law, nil
 }
 
 // progress accumulates the progress of successive propagations into one count.

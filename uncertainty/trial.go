@@ -11,6 +11,7 @@ import (
 const (
 	EngineDirect   = "direct"   // simulate every track, then estimate (any estimator, drift removal)
 	EngineSpectral = "spectral" // exact DST-I sampler: one gamma draw per mode (cve, known-noise; no drift removal)
+	EngineExact    = "exact"    // draws by inversion of the law computed without sampling (ExactLaw; as spectral, and no drift)
 )
 
 // TrialSpec names one Monte Carlo evaluation of a scenario: the scenario with its frames and tracks
@@ -21,6 +22,24 @@ type TrialSpec struct {
 	Frames   int      `json:"frames"`
 	Tracks   int      `json:"tracks"`
 	Engine   string   `json:"engine"` // "" = the fastest exact engine for the scenario
+}
+
+// resolve applies the spec's frames and tracks to its scenario, validates it and derives its setup.
+func (spec TrialSpec) resolve() (*setup, error) {
+	s := spec.Scenario
+	if spec.Frames != 0 || spec.Tracks != 0 {
+		s.TrackLengths = nil
+	}
+	if spec.Frames != 0 {
+		s.Frames = spec.Frames
+	}
+	if spec.Tracks != 0 {
+		s.Tracks = spec.Tracks
+	}
+	if err := s.Validate(); err != nil {
+		return nil, err
+	}
+	return newSetup(s)
 }
 
 // BestEngine returns the fastest engine that is exact for the scenario: spectral for the
@@ -45,24 +64,22 @@ func BestEngine(s Scenario) string {
 // r̂/r₀ is (to first order in the noise level, exactly without it) a pivot whose law does not depend on
 // r₀, so y is distributed as the true radius given a measurement whose estimate equals r₀: its coverage
 // interval is the one to report (JCGM 101 5.3).
+//
+// The engine "exact" draws y by inversion of its law computed without sampling (ExactLaw): one
+// normal variate per trial, after a one-off computation of a few milliseconds; it covers the
+// scenarios of the spectral engine that have no drift.
 func TrialModel(spec TrialSpec) (Model, string, error) {
-	s := spec.Scenario
-	if spec.Frames != 0 || spec.Tracks != 0 {
-		s.TrackLengths = nil
-	}
-	if spec.Frames != 0 {
-		s.Frames = spec.Frames
-	}
-	if spec.Tracks != 0 {
-		s.Tracks = spec.Tracks
-	}
-	if err := s.Validate(); err != nil {
-		return nil, "", err
-	}
-	u, err := newSetup(s)
+	m, engine, _, err := trialModel(spec)
+	return m, engine, err
+}
+
+// trialModel is TrialModel, also returning the exact law when the engine is "exact".
+func trialModel(spec TrialSpec) (Model, string, *ExactLaw, error) {
+	u, err := spec.resolve()
 	if err != nil {
-		return nil, "", err
+		return nil, "", nil, err
 	}
+	s := u.s
 	engine := spec.Engine
 	if engine == "" {
 		engine = BestEngine(s)
@@ -70,15 +87,24 @@ func TrialModel(spec TrialSpec) (Model, string, error) {
 	switch engine {
 	case EngineSpectral:
 		if BestEngine(s) != EngineSpectral {
-			return nil, "", &FieldError{Field: "engine", Value: engine, Allowed: `"direct" for this estimator and drift setting`}
+			return nil, "", nil, &FieldError{Field: "engine", Value: engine, Allowed: `"direct" for this estimator and drift setting`}
 		}
+	case EngineExact:
+		if err := exactEligible(s); err != nil {
+			return nil, "", nil, err
+		}
+		law, err := newExactLaw(u)
+		if err != nil {
+			return nil, "", nil, err
+		}
+		return law.model(), engine, law, nil
 	case EngineDirect:
 	default:
-		return nil, "", &FieldError{Field: "engine", Value: engine, Allowed: `"", "direct" or "spectral"`}
+		return nil, "", nil, &FieldError{Field: "engine", Value: engine, Allowed: `"", "direct", "spectral" or "exact"`}
 	}
 	estimate, err := u.estimator(engine)
 	if err != nil {
-		return nil, "", err
+		return nil, "", nil, err
 	}
 	rnm := u.r0 * 1e9
 	viscosity := u.viscosityAt()
@@ -95,7 +121,7 @@ func TrialModel(spec TrialSpec) (Model, string, error) {
 			y[i] = rnm * Da / u.D0
 		}
 	}
-	return m, engine, nil
+	return m, engine, nil, nil
 }
 
 // estimator returns the sampler of D̂ for the engine: given the true D and the drift velocity (m/s per
