@@ -34,7 +34,10 @@ function toast(text, action, fn) {
     t.hidden = true;
     if (fn) fn();
   };
+  const back = document.activeElement;
   t.hidden = false;
+  // The control that caused the toast may be gone (a deleted session): offer the action to the keyboard.
+  if (action && (!back || back === document.body || !back.isConnected)) b.focus();
   clearTimeout(toastTimer);
   toastTimer = setTimeout(() => {
     t.hidden = true;
