@@ -343,14 +343,15 @@ async function start() {
   initTabs();
   buildForm();
   $('build').textContent = `Version ${sizebudget.version}.`;
-  registerServiceWorker();
   let info;
   try {
     info = await sizebudget.ready;
   } catch (e) {
     status(`The engine did not start: ${e.message}`, 'bad');
+    registerServiceWorker();
     throw e;
   }
+  registerServiceWorker(); // after the engine, so that filling the offline cache does not delay it
   restoring = true;
   if (!(await loadDraft())) writeForm(stateFromScenario(sizebudget.demo()));
   restoring = false;
