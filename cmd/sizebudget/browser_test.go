@@ -413,7 +413,8 @@ func TestBrowserApp(t *testing.T) {
 		id := eval[string](t, b, `sizebudget.sessions.list().then((l) => l[0].id)`)
 		second := eval[string](t, b, `sizebudget.sessions.save({...sizebudget.demo(), frames: 120}, 'Invented: long tracks')`)
 		setField(t, b, "localisation_nm", "33")
-		time.Sleep(500 * time.Millisecond) // the draft is saved 300 ms after the last change
+		// The draft is saved 300 ms after the last change.
+		b.waitFor(t, `sizebudget.draft.get().then((d) => !!d && JSON.parse(d).state.localisation_nm === '33')`, 10*time.Second)
 
 		b.do(t, 30*time.Second, chromedp.Reload())
 		b.waitReady(t)
