@@ -6,6 +6,7 @@ import (
 	"context"
 	"encoding/json"
 	"fmt"
+	"sync/atomic"
 	"syscall/js"
 	"time"
 
@@ -58,14 +59,21 @@ func installCoordinator(g js.Value) {
 				return nil, fmt.Errorf("run: bad options: %v", err)
 			}
 		}
-		go c.run(kind, id, text, opts.Engine)
+		if !c.busy.CompareAndSwap(false, true) {
+			return nil, fmt.Errorf("run: job %d is refused, another one is in progress (one job at a time per team)", id)
+		}
+		go func() {
+			defer c.busy.Store(false)
+			c.run(kind, id, text, opts.Engine)
+		}()
 		return nil, nil
 	}))
 	g.Set("sizebudgetWorker", w)
 }
 
 type coordinator struct {
-	pool *pool // nil or empty: compute in this worker
+	pool *pool       // nil or empty: compute in this worker
+	busy atomic.Bool // a job is running: the pool's helpers serve one propagation at a time
 }
 
 // errorObject is the form of an error in a message: a plain object {message, field}, since an Error's
