@@ -398,7 +398,36 @@ func cachedEngine(root string, rebuild bool, log io.Writer) (string, error) {
 	}
 	st, _ := os.Stat(filepath.Join(dir, "main.wasm"))
 	fmt.Fprintf(log, "sizebudget: built main.wasm (%.1f MB) in %.0f s, cached in %s\n", float64(st.Size())/1e6, time.Since(start).Seconds(), dir)
+	pruneEngines(filepath.Dir(dir), keptEngines)
 	return dir, nil
+}
+
+// keptEngines is how many cached engine builds pruneEngines keeps (each is about 5 MB).
+const keptEngines = 4
+
+// pruneEngines removes all but the keep most recently built engine-* folders of the cache folder.
+func pruneEngines(cache string, keep int) {
+	entries, err := os.ReadDir(cache)
+	if err != nil {
+		return
+	}
+	type build struct {
+		path string
+		mod  time.Time
+	}
+	var builds []build
+	for _, e := range entries {
+		if !e.IsDir() || !strings.HasPrefix(e.Name(), "engine-") {
+			continue
+		}
+		if info, err := e.Info(); err == nil {
+			builds = append(builds, build{filepath.Join(cache, e.Name()), info.ModTime()})
+		}
+	}
+	slices.SortFunc(builds, func(a, b build) int { return b.mod.Compare(a.mod) })
+	for _, b := range builds[min(keep, len(builds)):] {
+		os.RemoveAll(b.path)
+	}
 }
 
 // buildEngine builds ./wasm for js/wasm into dir/main.wasm and copies the toolchain's wasm_exec.js

@@ -393,3 +393,27 @@ func (s *syncBuffer) String() string {
 	defer s.mu.Unlock()
 	return s.b.String()
 }
+
+func TestPruneEngines(t *testing.T) {
+	cache := t.TempDir()
+	now := time.Now()
+	for i, name := range []string{"engine-a", "engine-b", "engine-c", "engine-d", ".build-x", "other"} {
+		p := filepath.Join(cache, name)
+		if err := os.Mkdir(p, 0o755); err != nil {
+			t.Fatal(err)
+		}
+		mod := now.Add(time.Duration(i) * time.Minute) // engine-d is the newest engine
+		if err := os.Chtimes(p, mod, mod); err != nil {
+			t.Fatal(err)
+		}
+	}
+	pruneEngines(cache, 2)
+	entries, _ := os.ReadDir(cache)
+	var left []string
+	for _, e := range entries {
+		left = append(left, e.Name())
+	}
+	if want := []string{".build-x", "engine-c", "engine-d", "other"}; strings.Join(left, " ") != strings.Join(want, " ") {
+		t.Errorf("after pruning to 2: %v, want %v", left, want)
+	}
+}
