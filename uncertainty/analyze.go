@@ -8,8 +8,6 @@ import (
 	"math/rand/v2"
 	"slices"
 
-	"gonum.org/v1/gonum/stat/distuv"
-
 	"sizebudget/core"
 )
 
@@ -507,7 +505,7 @@ func (acc *accumulator) drift(D, s2 float64) (DriftEstimate, []float64) {
 		dr.speed2 += v * v
 		v2 += v*v - se2
 	}
-	dr.PValue = 1 - distuv.ChiSquared{K: float64(acc.dims)}.CDF(dr.ChiSquare)
+	dr.PValue = 1 - chiSquaredCDF(float64(acc.dims), dr.ChiSquare)
 	dr.RelBias = 1.5 * acc.dt * math.Max(v2, 0) / float64(acc.dims) / D
 	dr.Matters = dr.PValue < DriftAlpha && dr.RelBias > DriftShare*dr.TrackRelU
 	return dr, mu

@@ -3,8 +3,6 @@ package uncertainty
 import (
 	"encoding/json"
 	"math"
-
-	"gonum.org/v1/gonum/stat/distuv"
 )
 
 // Source is one line of the uncertainty budget of the radius: an input quantity, its standard
@@ -130,7 +128,7 @@ func (b Budget) dominantFixed() string {
 func coverageFactor(p, nu float64) float64 {
 	q := (1 + p) / 2
 	if math.IsInf(nu, 1) || nu > 1e7 {
-		return distuv.UnitNormal.Quantile(q)
+		return normalQuantile(q)
 	}
-	return distuv.StudentsT{Mu: 0, Sigma: 1, Nu: nu}.Quantile(q)
+	return studentQuantile(q, nu)
 }

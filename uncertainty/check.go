@@ -4,8 +4,6 @@ import (
 	"context"
 	"fmt"
 	"math"
-
-	"gonum.org/v1/gonum/stat/distuv"
 )
 
 // CheckFormat identifies the JSON of a CheckResult.
@@ -77,9 +75,9 @@ func Check(ctx context.Context, s Scenario, opt PlanOptions) (*CheckResult, erro
 		if p == 0 {
 			p = 0.95
 		}
-		k = distuv.UnitNormal.Quantile((1 + p) / 2)
+		k = normalQuantile((1 + p) / 2)
 	}
-	zp := distuv.UnitNormal.Quantile((1 + s.Coverage) / 2)
+	zp := normalQuantile((1 + s.Coverage) / 2)
 	b := u.budget(u.groups)
 	fixed := b.fixedRelVar()
 	c := &CheckResult{Format: CheckFormat, Coverage: s.Coverage, ReportedRadius: s.ReportedRadiusNM, ReportedU: s.ReportedUNM, ReportedK: k,

@@ -18,12 +18,6 @@ func sumOfNormals(r *rand.Rand, y []float64) {
 	}
 }
 
-// normalQuantile returns Φ⁻¹(p) of the standard normal law (stdlib math.Erfinv).
-func normalQuantile(p float64) float64 { return math.Sqrt2 * math.Erfinv(2*p-1) }
-
-// normalPDF returns the standard normal density.
-func normalPDF(z float64) float64 { return math.Exp(-z*z/2) / math.Sqrt(2*math.Pi) }
-
 // quantileSE returns the asymptotic standard error √(P(1−P)/M)/f of the sample quantile at level P
 // for a density f there (order-statistic asymptotics, common practice, no source).
 func quantileSE(level, density float64, m int) float64 {
