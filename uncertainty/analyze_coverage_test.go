@@ -10,27 +10,6 @@ import (
 	"sizebudget/core"
 )
 
-// acceptance returns the acceptance region [lo, hi] of a Binomial(n, p) count at two-sided level
-// alpha: lo the smallest k with P(X ≤ k) > alpha/2, hi the largest k with P(X ≥ k) > alpha/2, from the
-// exact law (gonum distuv.Binomial CDF).
-func acceptance(n int, p, alpha float64) (lo, hi int) {
-	b := distuv.Binomial{N: float64(n), P: p}
-	lo, hi = 0, n
-	for k := 0; k <= n; k++ {
-		if b.CDF(float64(k)) > alpha/2 {
-			lo = k
-			break
-		}
-	}
-	for k := n; k >= 0; k-- {
-		if 1-b.CDF(float64(k-1)) > alpha/2 {
-			hi = k
-			break
-		}
-	}
-	return lo, hi
-}
-
 // recordedExperiment plays one recording as it really happens, for the coverage of Analyze: the true
 // temperature, the error of the viscosity model and the error of the length calibration are drawn
 // from the distributions the settings state; the particle of radius rNM (nm) diffuses at the true D;
@@ -92,7 +71,7 @@ func TestAnalyzeCoverage(t *testing.T) {
 	if testing.Short() {
 		n = 30 // a smoke test (the WebAssembly run of CI); acceptance region 23–30
 	}
-	lo, hi := acceptance(n, 0.95, 0.001)
+	lo, hi := binomialRegion(n, 0.95, 0.001)
 	if b := (distuv.Binomial{N: float64(n), P: 0.95}); b.CDF(float64(hi))-b.CDF(float64(lo-1)) < 0.999 {
 		t.Fatalf("acceptance region [%d, %d] holds less than 99.9 %%", lo, hi)
 	}
