@@ -89,24 +89,17 @@ func MSDFit(tracks []Track, interval, blur float64, lags int) (Estimate, error) 
 	}
 	longest, disp := 0, 0
 	for i, tr := range tracks {
-		if tr.Dims() != dims {
-			return Estimate{}, fmt.Errorf("%w: track %d has %d, track 0 has %d", ErrDimsDiffer, i, tr.Dims(), dims)
+		if err := checkTrack(i, tr, dims, 2, "a displacement needs 2 points"); err != nil {
+			return Estimate{}, err
 		}
-		pts := tr.Len()
 		for a, p := range tr.Pos {
-			if len(p) != pts {
-				return Estimate{}, fmt.Errorf("%w: track %d axis %d has %d points, axis 0 has %d", ErrRagged, i, a, len(p), pts)
-			}
 			for _, x := range p {
 				if math.IsNaN(x) || math.IsInf(x, 0) {
 					return Estimate{}, fmt.Errorf("%w: track %d axis %d", ErrNonFinite, i, a)
 				}
 			}
 		}
-		if pts < 2 {
-			return Estimate{}, fmt.Errorf("core: track %d: %w", i,
-				&RangeError{Field: "points", Value: float64(pts), Min: 2, Max: math.Inf(1), Why: "a displacement needs 2 points"})
-		}
+		pts := tr.Len()
 		longest = max(longest, pts)
 		disp += pts - 1
 	}

@@ -47,19 +47,10 @@ func pool(tracks []Track, minPoints int, need string, stat trackStat) (Estimate,
 	var sumD, sumS2 float64
 	var n int
 	for i, tr := range tracks {
-		if tr.Dims() != dims {
-			return Estimate{}, fmt.Errorf("%w: track %d has %d, track 0 has %d", ErrDimsDiffer, i, tr.Dims(), dims)
+		if err := checkTrack(i, tr, dims, minPoints, need); err != nil {
+			return Estimate{}, err
 		}
 		pts := tr.Len()
-		for a, p := range tr.Pos {
-			if len(p) != pts {
-				return Estimate{}, fmt.Errorf("%w: track %d axis %d has %d points, axis 0 has %d", ErrRagged, i, a, len(p), pts)
-			}
-		}
-		if pts < minPoints {
-			return Estimate{}, fmt.Errorf("core: track %d: %w", i,
-				&RangeError{Field: "points", Value: float64(pts), Min: float64(minPoints), Max: math.Inf(1), Why: need})
-		}
 		var dTr, s2Tr float64
 		for _, p := range tr.Pos {
 			d, s2 := stat(p)
@@ -75,6 +66,25 @@ func pool(tracks []Track, minPoints int, need string, stat trackStat) (Estimate,
 		n += pts - 1
 	}
 	return Estimate{D: sumD / float64(n), S2: sumS2 / float64(n), Displacements: n, Tracks: len(tracks)}, nil
+}
+
+// checkTrack returns an error when track i does not have dims axes of equal length (ErrDimsDiffer,
+// ErrRagged) or has fewer than minPoints points (a *RangeError on "points" saying need).
+func checkTrack(i int, tr Track, dims, minPoints int, need string) error {
+	if tr.Dims() != dims {
+		return fmt.Errorf("%w: track %d has %d, track 0 has %d", ErrDimsDiffer, i, tr.Dims(), dims)
+	}
+	pts := tr.Len()
+	for a, p := range tr.Pos {
+		if len(p) != pts {
+			return fmt.Errorf("%w: track %d axis %d has %d points, axis 0 has %d", ErrRagged, i, a, len(p), pts)
+		}
+	}
+	if pts < minPoints {
+		return fmt.Errorf("core: track %d: %w", i,
+			&RangeError{Field: "points", Value: float64(pts), Min: float64(minPoints), Max: math.Inf(1), Why: need})
+	}
+	return nil
 }
 
 // checkEstimatorArgs returns a *RangeError for a frame interval that is not positive and finite or a
