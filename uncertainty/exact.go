@@ -4,7 +4,6 @@ import (
 	"errors"
 	"math"
 	"math/rand/v2"
-	"slices"
 
 	"gonum.org/v1/gonum/stat/distuv"
 
@@ -46,8 +45,9 @@ import (
 //
 // References:
 //   - Imhof J.P. (1961) Biometrika 48, 419–426; see core.ChiSquaredSum.
-//   - JCGM 101:2008, Supplement 1 to the GUM, clauses 5.4 (propagation of distributions by analytical
-//     or numerical methods other than Monte Carlo) and 7.7 (coverage intervals).
+//   - JCGM 101:2008, Supplement 1 to the GUM, clause 5.4 (from memory: the implementations of the
+//     propagation of distributions, analytical methods among them) and clause 7.7 (coverage
+//     intervals).
 //   - Trefethen L.N., Approximation Theory and Approximation Practice (2013) (Chebyshev interpolants).
 type ExactLaw struct {
 	rnm, d0   float64
@@ -131,7 +131,7 @@ func buildExactLaw(u *setup, nodeScale int) (*ExactLaw, error) {
 			weight: float64(g.Count*N) / float64(total)})
 	}
 	l.outerNodes(u, nodeScale)
-	l.moments()
+	l.moments(u)
 	if err := l.buildXiTable(u); err != nil {
 		return nil, err
 	}
@@ -284,6 +284,28 @@ func clampedNormalRule(n int) [][2]float64 {
 	return rule
 }
 
+// trackRelVarAt is Var(D̂)/D² of the pooled estimate when the true coefficient is D (trackRelVar is
+// the same at the nominal D₀).
+func (u *setup) trackRelVarAt(D float64) float64 {
+	total := 0.0
+	for _, g := range u.groups {
+		total += float64(g.Count * (g.Frames - 1))
+	}
+	v := 0.0
+	for _, g := range u.groups {
+		N := g.Frames - 1
+		w := float64(N) / total
+		var v1 float64
+		if u.s.Estimator == "known-noise" {
+			v1 = core.VarKnownNoiseExact(D, u.dt, u.blur, u.s2, N, u.dims)
+		} else {
+			v1 = core.VarCVEExact(D, u.dt, u.blur, u.s2, N, u.dims)
+		}
+		v += float64(g.Count) * w * w * v1
+	}
+	return v / (D * D)
+}
+
 // legendreRule returns the n-point Gauss–Legendre nodes and weights on [a, b], by Newton's method on
 // the three-term recurrence of P_n from the initial guesses cos(π(i + 3/4)/(n + 1/2)), with weights
 // 2/((1 − x²)·P′_n(x)²). (Written here rather than taken from gonum's quad.Legendre, whose v0.17.0
@@ -326,7 +348,7 @@ func legendreRule(n int, a, b float64) (x, w []float64) {
 // moments sets the exact mean and standard deviation of y for the Monte Carlo model, whose pixel
 // error is clamped to ±5σ: E[y] = (r₀/D₀)·E[D]·E[(1+δ)⁻²] (the estimators are unbiased) and
 // E[y²] = (r₀/D₀)²·E[D² + Var(D̂|D)]·E[(1+δ)⁻⁴].
-func (l *ExactLaw) moments() {
+func (l *ExactLaw) moments(u *setup) {
 	m2, m4 := 1.0, 1.0
 	if l.uPix > 0 {
 		m2, m4 = 0, 0
@@ -336,15 +358,13 @@ func (l *ExactLaw) moments() {
 			m4 += n[1] * f * f
 		}
 	}
+	// Var(D̂|D) = D²·(relative variance at D), from the exact finite-N variances (core.VarCVEExact,
+	// core.VarKnownNoiseExact, through trackRelVar), which depend on D through ε only.
 	var eD, eD2 float64
 	for _, n := range l.nodes {
 		D := l.d0 / n.e
-		v := 0.0
-		for _, g := range l.groups {
-			v += g.weight * g.weight * g.sp.Law(D, nil).Variance()
-		}
 		eD += n.w * D
-		eD2 += n.w * (D*D + v)
+		eD2 += n.w * D * D * (1 + u.trackRelVarAt(D))
 	}
 	k := l.rnm / l.d0
 	l.mean = k * eD * m2
@@ -422,7 +442,7 @@ func (l *ExactLaw) buildXiTable(u *setup) error {
 			}
 			coef[m] = chebCoeffs(col)
 			if ne > 0 {
-				eOK = eOK && chebTail(coef[m])*math.Max(1, maxAbs(coef[m])) <= exactTableTol
+				eOK = eOK && tailAbs(coef[m]) <= exactTableTol // absolute: the scale is that of the ξ series
 			}
 		}
 		if xiOK && eOK {
@@ -454,9 +474,10 @@ func (l *ExactLaw) buildXiTable(u *setup) error {
 	}
 }
 
-func maxAbs(c []float64) float64 {
+// tailAbs returns the largest magnitude among the last three coefficients.
+func tailAbs(c []float64) float64 {
 	m := 0.0
-	for _, v := range c {
+	for _, v := range c[max(0, len(c)-3):] {
 		m = math.Max(m, math.Abs(v))
 	}
 	return m
@@ -661,16 +682,6 @@ func (l *ExactLaw) model() Model {
 			y[i] = inv.at(z)
 		}
 	}
-}
-
-// sortedNodes returns the outer nodes' e values in order (for tests).
-func (l *ExactLaw) sortedNodes() []float64 {
-	e := make([]float64, len(l.nodes))
-	for i, n := range l.nodes {
-		e[i] = n.e
-	}
-	slices.Sort(e)
-	return e
 }
 
 // ExactSummary reports the exact law of a plan's Monte Carlo value (nm) and how the Monte Carlo agrees

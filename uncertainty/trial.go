@@ -66,8 +66,9 @@ func BestEngine(s Scenario) string {
 // interval is the one to report (JCGM 101 5.3).
 //
 // The engine "exact" draws y by inversion of its law computed without sampling (ExactLaw): one
-// normal variate per trial, after a one-off computation of a few milliseconds; it covers the
-// scenarios of the spectral engine that have no drift.
+// normal variate per trial, after a one-off computation (about 25 ms for the demo scenario natively,
+// 0.2 s at 100 tracks × 1000 frames; see docs/benchmarks.md); it covers the scenarios of the spectral
+// engine that have no drift.
 func TrialModel(spec TrialSpec) (Model, string, error) {
 	m, engine, _, err := trialModel(spec)
 	return m, engine, err
