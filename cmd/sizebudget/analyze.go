@@ -7,7 +7,6 @@ import (
 	"fmt"
 	"io"
 	"os"
-	"os/signal"
 	"regexp"
 	"slices"
 	"strings"
@@ -102,14 +101,7 @@ var notForAnalysis = []struct{ flag, why string }{
 	{"target", "there is nothing to plan in recorded data"},
 }
 
-// runAnalyze is the analyze subcommand. An interrupt (Ctrl-C) cancels the Monte Carlo.
-func runAnalyze(args []string, stdout, stderr io.Writer) error {
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
-	defer stop()
-	return analyzeCommand(ctx, args, stdout, stderr)
-}
-
-// analyzeCommand runs the analyze subcommand under ctx.
+// analyzeCommand runs the analyze subcommand under ctx (see interruptible).
 func analyzeCommand(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	fs := newFlagSet("analyze", "-tracks file (-scenario file | -temp T -interval Δt -exposure t) [settings flags] [-json] [-svg file]", analyzeAbout, stderr)
 	path := fs.String("tracks", "", "the track `file` to analyse, CSV or TSV (- = standard input); required")

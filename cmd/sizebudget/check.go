@@ -4,8 +4,6 @@ import (
 	"context"
 	"fmt"
 	"io"
-	"os"
-	"os/signal"
 
 	"sizebudget/uncertainty"
 )
@@ -33,14 +31,7 @@ fixed_relative_expanded_uncertainty (temperature, viscosity, calibration and dri
 explanation, and plan (the plan of the settings at the reported radius, as sizebudget plan -json
 writes it, without the planner). Ctrl-C stops a long Monte Carlo.`
 
-// runCheck is the check subcommand. An interrupt (Ctrl-C) cancels the Monte Carlo.
-func runCheck(args []string, stdout, stderr io.Writer) error {
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
-	defer stop()
-	return checkCommand(ctx, args, stdout, stderr)
-}
-
-// checkCommand runs the check subcommand under ctx.
+// checkCommand runs the check subcommand under ctx (see interruptible).
 func checkCommand(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	fs := newFlagSet("check", "-reported-radius r -reported-u U [-reported-k k | -reported-coverage p] [-scenario file] [settings flags] [-json]", checkAbout, stderr)
 	sf := defineScenarioFlags(fs)

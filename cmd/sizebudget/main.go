@@ -11,12 +11,14 @@
 package main
 
 import (
+	"context"
 	"errors"
 	"flag"
 	"fmt"
 	"io"
 	"maps"
 	"os"
+	"os/signal"
 	"slices"
 	"strings"
 )
@@ -32,11 +34,21 @@ type command struct {
 var commands = map[string]command{
 	"viscosity": {runViscosity, "viscosity of water, glycerol–water or a custom liquid at a temperature, with its uncertainty"},
 	"diffusion": {runDiffusion, "Stokes–Einstein both ways (radius → D, D → radius), optionally near a wall"},
-	"plan":      {runPlan, "coverage interval, uncertainty budget and the frames per track a target needs"},
-	"check":     {runCheck, "review a reported radius ± uncertainty against what its settings can achieve"},
+	"plan":      {interruptible(planCommand), "coverage interval, uncertainty budget and the frames per track a target needs"},
+	"check":     {interruptible(checkCommand), "review a reported radius ± uncertainty against what its settings can achieve"},
 	"serve":     {runServe, "serve the offline browser app on 127.0.0.1 (builds the WebAssembly engine when needed)"},
-	"analyze":   {runAnalyze, "radius with its coverage interval from recorded tracks, with drift and free-diffusion checks"},
+	"analyze":   {interruptible(analyzeCommand), "radius with its coverage interval from recorded tracks, with drift and free-diffusion checks"},
 	"simulate":  {runSimulate, "write a track file of INVENTED data from a scenario, seeded, to try analyze"},
+}
+
+// interruptible turns a command that runs under a context into one whose context an interrupt
+// (Ctrl-C) cancels, so a long Monte Carlo stops cleanly.
+func interruptible(f func(ctx context.Context, args []string, stdout, stderr io.Writer) error) func(args []string, stdout, stderr io.Writer) error {
+	return func(args []string, stdout, stderr io.Writer) error {
+		ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+		defer stop()
+		return f(ctx, args, stdout, stderr)
+	}
 }
 
 // A usageError reports a command line that cannot be understood: an unknown command or flag, a

@@ -7,7 +7,6 @@ import (
 	"fmt"
 	"io"
 	"os"
-	"os/signal"
 	"strconv"
 	"strings"
 
@@ -77,14 +76,7 @@ func (e *engineFlags) Options(fs *flag.FlagSet) (uncertainty.PlanOptions, error)
 	return uncertainty.PlanOptions{Engine: e.engine.Value(), Workers: *e.workers}, nil
 }
 
-// runPlan is the plan subcommand. An interrupt (Ctrl-C) cancels the Monte Carlo.
-func runPlan(args []string, stdout, stderr io.Writer) error {
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
-	defer stop()
-	return planCommand(ctx, args, stdout, stderr)
-}
-
-// planCommand runs the plan subcommand under ctx.
+// planCommand runs the plan subcommand under ctx (see interruptible).
 func planCommand(ctx context.Context, args []string, stdout, stderr io.Writer) error {
 	fs := newFlagSet("plan", "[-scenario file] [settings flags] [-json] [-svg file] [-curve-svg file]", planAbout, stderr)
 	sf := defineScenarioFlags(fs)
