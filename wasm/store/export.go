@@ -15,10 +15,13 @@ import (
 // ExportFormat identifies the session export file this version writes:
 //
 //	{"format": "sizebudget/sessions/1", "exported": "<RFC 3339 time>",
-//	 "sessions": [{"id", "name", "note", "created", "modified", "scenario": {scenario document}}]}
+//	 "sessions": [{"id", "name", "note", "created", "modified", "scenario": {scenario document},
+//	               "analysis": {"file", "settings", "result", "analysed"}}]}
 //
 // Times are RFC 3339. The scenario is the scenario document of package uncertainty, with its own
-// "format" field, so a newer engine reads the scenarios of an older file.
+// "format" field, so a newer engine reads the scenarios of an older file. "analysis" is optional (an
+// Analysis: the summary of a track file, the settings and the result, whose own "format" is
+// uncertainty.AnalysisFormat); files written before it existed have none and read as before.
 const ExportFormat = "sizebudget/sessions/1"
 
 const (
@@ -42,6 +45,7 @@ type exportSession struct {
 	Created  time.Time       `json:"created"`
 	Modified time.Time       `json:"modified"`
 	Scenario json.RawMessage `json:"scenario"`
+	Analysis json.RawMessage `json:"analysis,omitempty"`
 }
 
 // Export writes the sessions with the given ids (all sessions when none is given), newest first, as
@@ -68,7 +72,13 @@ func (sh *Shelf) Export(ctx context.Context, ids ...string) ([]byte, error) {
 		if err != nil {
 			return nil, err
 		}
-		f.Sessions = append(f.Sessions, exportSession{ID: s.ID, Name: s.Name, Note: s.Note, Created: s.Created, Modified: s.Modified, Scenario: doc})
+		es := exportSession{ID: s.ID, Name: s.Name, Note: s.Note, Created: s.Created, Modified: s.Modified, Scenario: doc}
+		if s.Analysis != nil {
+			if es.Analysis, err = json.Marshal(s.Analysis); err != nil {
+				return nil, err
+			}
+		}
+		f.Sessions = append(f.Sessions, es)
 	}
 	return json.MarshalIndent(f, "", "  ")
 }
@@ -200,17 +210,43 @@ func ReadExport(data []byte) ([]Session, error) {
 		if es.Modified.Before(es.Created) {
 			return fail(n, es.Name, fmt.Errorf("modified %s is before created %s", es.Modified.Format(time.RFC3339), es.Created.Format(time.RFC3339)))
 		}
-		out = append(out, Session{ID: es.ID, Name: name, Note: note, Created: es.Created.UTC(), Modified: es.Modified.UTC(), Scenario: sc})
+		var an *Analysis
+		if len(es.Analysis) > 0 && string(es.Analysis) != "null" {
+			if an, err = ParseAnalysis(es.Analysis); err != nil {
+				return fail(n, es.Name, err)
+			}
+		}
+		out = append(out, Session{ID: es.ID, Name: name, Note: note, Created: es.Created.UTC(), Modified: es.Modified.UTC(), Scenario: sc, Analysis: an})
 	}
 	return out, nil
 }
 
-// same reports whether two sessions hold the same content (times compared as instants).
+// same reports whether two sessions hold the same content (times compared as instants, the numbers
+// of analysis results as values).
 func same(a, b Session) bool {
 	if a.ID != b.ID || a.Name != b.Name || a.Note != b.Note || !a.Created.Equal(b.Created) || !a.Modified.Equal(b.Modified) {
 		return false
 	}
 	ja, err1 := json.Marshal(a.Scenario)
 	jb, err2 := json.Marshal(b.Scenario)
+	if err1 != nil || err2 != nil || !bytes.Equal(ja, jb) {
+		return false
+	}
+	if (a.Analysis == nil) != (b.Analysis == nil) {
+		return false
+	}
+	if a.Analysis == nil {
+		return true
+	}
+	if !a.Analysis.Analysed.Equal(b.Analysis.Analysed) {
+		return false
+	}
+	ca, cb := *a.Analysis, *b.Analysis
+	ca.Analysed, cb.Analysed = time.Time{}, time.Time{}
+	if ca.File.Modified != nil && cb.File.Modified != nil && ca.File.Modified.Equal(*cb.File.Modified) {
+		ca.File.Modified = cb.File.Modified
+	}
+	ja, err1 = ca.canonical()
+	jb, err2 = cb.canonical()
 	return err1 == nil && err2 == nil && bytes.Equal(ja, jb)
 }

@@ -47,9 +47,19 @@ func (sh *Shelf) Store() Store { return sh.store }
 // Save validates the scenario and saves it as a new session with the given name and note; it
 // returns the new session. An empty name is replaced by the scenario's own name, or "Untitled".
 func (sh *Shelf) Save(ctx context.Context, sc uncertainty.Scenario, name, note string) (Session, error) {
+	return sh.SaveWith(ctx, sc, nil, name, note)
+}
+
+// SaveWith is Save for a session that also keeps the analysis an (nil: none), which it validates.
+func (sh *Shelf) SaveWith(ctx context.Context, sc uncertainty.Scenario, an *Analysis, name, note string) (Session, error) {
 	sc = sc.Defaults()
 	if err := sc.Validate(); err != nil {
 		return Session{}, err
+	}
+	if an != nil {
+		if err := an.Validate(); err != nil {
+			return Session{}, fmt.Errorf("analysis: %w", err)
+		}
 	}
 	name, note, err := cleanText(name, note, sc)
 	if err != nil {
@@ -60,24 +70,43 @@ func (sh *Shelf) Save(ctx context.Context, sc uncertainty.Scenario, name, note s
 		return Session{}, err
 	}
 	t := sh.now().UTC()
-	s := Session{ID: id, Name: name, Note: note, Created: t, Modified: t, Scenario: sc}
+	s := Session{ID: id, Name: name, Note: note, Created: t, Modified: t, Scenario: sc, Analysis: an}
 	if err := sh.store.Put(ctx, s); err != nil {
 		return Session{}, err
 	}
 	return s, nil
 }
 
-// Update replaces the scenario of an existing session (name and note are kept) and marks it modified.
+// Update replaces the scenario of an existing session (name, note and analysis are kept) and marks
+// it modified.
 func (sh *Shelf) Update(ctx context.Context, id string, sc uncertainty.Scenario) (Session, error) {
+	return sh.update(ctx, id, sc, nil, false)
+}
+
+// UpdateWith replaces the scenario and the analysis of an existing session (nil removes the
+// analysis; name and note are kept) and marks it modified.
+func (sh *Shelf) UpdateWith(ctx context.Context, id string, sc uncertainty.Scenario, an *Analysis) (Session, error) {
+	return sh.update(ctx, id, sc, an, true)
+}
+
+func (sh *Shelf) update(ctx context.Context, id string, sc uncertainty.Scenario, an *Analysis, setAnalysis bool) (Session, error) {
 	sc = sc.Defaults()
 	if err := sc.Validate(); err != nil {
 		return Session{}, err
+	}
+	if an != nil {
+		if err := an.Validate(); err != nil {
+			return Session{}, fmt.Errorf("analysis: %w", err)
+		}
 	}
 	s, err := sh.store.Get(ctx, id)
 	if err != nil {
 		return Session{}, err
 	}
 	s.Scenario = sc
+	if setAnalysis {
+		s.Analysis = an
+	}
 	s.Modified = sh.later(s.Modified)
 	return s, sh.store.Put(ctx, s)
 }
@@ -96,7 +125,7 @@ func (sh *Shelf) Rename(ctx context.Context, id, name, note string) (Session, er
 	return s, sh.store.Put(ctx, s)
 }
 
-// Duplicate saves a copy of a session under a new id, named "<name> (copy)".
+// Duplicate saves a copy of a session (with its analysis) under a new id, named "<name> (copy)".
 func (sh *Shelf) Duplicate(ctx context.Context, id string) (Session, error) {
 	s, err := sh.store.Get(ctx, id)
 	if err != nil {
@@ -106,7 +135,7 @@ func (sh *Shelf) Duplicate(ctx context.Context, id string) (Session, error) {
 	if utf8.RuneCountInString(name) > MaxNameLen {
 		name = s.Name
 	}
-	return sh.Save(ctx, s.Scenario, name, s.Note)
+	return sh.SaveWith(ctx, s.Scenario, s.Analysis, name, s.Note)
 }
 
 // Get returns the session with the given id (an error wrapping ErrNotFound if there is none).
@@ -134,6 +163,11 @@ func (sh *Shelf) Restore(ctx context.Context, s Session) error {
 	}
 	if err := s.Scenario.Validate(); err != nil {
 		return err
+	}
+	if s.Analysis != nil {
+		if err := s.Analysis.Validate(); err != nil {
+			return fmt.Errorf("analysis: %w", err)
+		}
 	}
 	return sh.store.Put(ctx, s)
 }

@@ -12,7 +12,9 @@ import (
 var ErrNotFound = errors.New("store: no such session")
 
 // Session is one saved scenario with the name and note the user gave it. Created and Modified are
-// wall-clock times; the scenario is the validated scenario document.
+// wall-clock times; the scenario is the validated scenario document. Analysis, when set, is the
+// analysis of a recorded track file kept with the session (its summary, settings and result; not
+// the file's rows).
 type Session struct {
 	ID       string               `json:"id"`
 	Name     string               `json:"name"`
@@ -20,6 +22,7 @@ type Session struct {
 	Created  time.Time            `json:"created"`
 	Modified time.Time            `json:"modified"`
 	Scenario uncertainty.Scenario `json:"scenario"`
+	Analysis *Analysis            `json:"analysis,omitempty"`
 }
 
 // Store is where sessions and the autosaved draft live. Implementations: Memory (for tests and as a
