@@ -21,13 +21,26 @@ type replyError struct {
 	Field   string `json:"field,omitempty"`
 }
 
-// describe returns the reply form of err. A *uncertainty.FieldError or *core.RangeError (also inside
-// an import error) names its field.
+// fieldError is an error that concerns one setting, named by its JSON key, though it is not a
+// range error (a track file whose header the settings cannot read, say).
+type fieldError struct {
+	field string
+	err   error
+}
+
+func (e *fieldError) Error() string { return e.err.Error() }
+func (e *fieldError) Unwrap() error { return e.err }
+
+// describe returns the reply form of err. A *fieldError, *uncertainty.FieldError or *core.RangeError
+// (also inside an import error) names its field.
 func describe(err error) replyError {
 	r := replyError{Message: err.Error()}
+	var fd *fieldError
 	var fe *uncertainty.FieldError
 	var re *core.RangeError
 	switch {
+	case errors.As(err, &fd):
+		r.Field = fd.field
 	case errors.As(err, &fe):
 		r.Field = fe.Field
 	case errors.As(err, &re):
@@ -101,6 +114,44 @@ func asyncFunc(fn func(ctx context.Context, args []js.Value) (any, error)) js.Fu
 		})
 		return js.Global().Get("Promise").New(handler)
 	})
+}
+
+// awaitPromise waits for a JavaScript Promise and returns its value, or its rejection as an error.
+// It must be called on a goroutine other than the one serving a JavaScript call (the event loop has
+// to turn).
+func awaitPromise(p js.Value) (js.Value, error) {
+	type outcome struct {
+		v   js.Value
+		err error
+	}
+	ch := make(chan outcome, 1)
+	var then, catch js.Func
+	then = js.FuncOf(func(_ js.Value, args []js.Value) any {
+		v := js.Undefined()
+		if len(args) > 0 {
+			v = args[0]
+		}
+		ch <- outcome{v: v}
+		return nil
+	})
+	catch = js.FuncOf(func(_ js.Value, args []js.Value) any {
+		msg := "rejected"
+		if len(args) > 0 {
+			msg = js.Global().Get("String").Invoke(args[0]).String()
+			if args[0].Type() == js.TypeObject {
+				if m := args[0].Get("message"); m.Type() == js.TypeString {
+					msg = m.String()
+				}
+			}
+		}
+		ch <- outcome{err: errors.New(msg)}
+		return nil
+	})
+	p.Call("then", then, catch)
+	o := <-ch
+	then.Release()
+	catch.Release()
+	return o.v, o.err
 }
 
 // jsonText marshals v for JavaScript, which parses it with JSON.parse.

@@ -4,6 +4,7 @@ package main
 
 import (
 	"fmt"
+	"strconv"
 	"syscall/js"
 
 	"sizebudget/chart"
@@ -16,6 +17,10 @@ const (
 	chartWidth  = 640
 	chartHeight = 340
 	curveHeight = 460 // room for up to four legend rows
+	// The radius histogram of an analysis has the size of sizebudget analyze -svg, so that the two
+	// documents are the same.
+	radiiWidth  = 720
+	radiiHeight = 480
 )
 
 // planCharts draws the charts of a plan: the histogram of the simulated radius estimates with the
@@ -70,12 +75,62 @@ func planCharts(p *uncertainty.PlanResult) map[string]string {
 	}
 
 	if len(p.Budget) > 0 {
-		b := chart.Bars{Title: "Share of the variance", Unit: "%", Format: "%.1f"}
-		for _, s := range p.Budget {
-			b.Labels = append(b.Labels, s.Source)
-			b.Values = append(b.Values, 100*s.Share)
+		svg, err := budgetBars(p)
+		add("budget", svg, err)
+	}
+	return out
+}
+
+// budgetBars draws the budget shares of a plan as bars.
+func budgetBars(p *uncertainty.PlanResult) (string, error) {
+	b := chart.Bars{Title: "Share of the variance", Unit: "%", Format: "%.1f"}
+	for _, s := range p.Budget {
+		b.Labels = append(b.Labels, s.Source)
+		b.Values = append(b.Values, 100*s.Share)
+	}
+	return b.SVG(chartWidth)
+}
+
+// analysisCharts draws the charts of an analysis of recorded tracks: "radii", the histogram of the
+// per-track radii with the monodisperse reference overlaid, the pooled radius marked and its
+// coverage interval shaded (the same document as sizebudget analyze -svg), and "budget", the budget
+// shares as bars. A chart that cannot be drawn is left out with a warning on the console.
+func analysisCharts(a *uncertainty.Analysis) map[string]string {
+	out := map[string]string{}
+	add := func(name string, svg string, err error) {
+		if err != nil {
+			js.Global().Get("console").Call("warn", "sizebudget: chart "+name+": "+err.Error())
+			return
 		}
-		svg, err := b.SVG(chartWidth)
+		out[name] = svg
+	}
+	g4 := func(x float64) string { return strconv.FormatFloat(x, 'g', 4, 64) }
+	g6 := func(x float64) string { return strconv.FormatFloat(x, 'g', 6, 64) }
+	rd := a.Radii
+	over := make([]chart.Point, len(rd.Monodisperse))
+	for i, m := range rd.Monodisperse {
+		over[i] = chart.Point{X: (rd.EdgesNM[i] + rd.EdgesNM[i+1]) / 2, Y: m}
+	}
+	outside := rd.Below + rd.Above + rd.NonPositive
+	title := fmt.Sprintf("Radii of %d single tracks", a.TracksUsed)
+	if outside > 0 {
+		title += fmt.Sprintf(" (%d outside the axis)", outside)
+	}
+	h := chart.Histogram{
+		Title:        title,
+		XLabel:       "hydrodynamic radius of one track (nm)",
+		YLabel:       "tracks",
+		Edges:        rd.EdgesNM,
+		Counts:       rd.Counts,
+		Overlay:      over,
+		OverlayLabel: "a monodisperse sample, same track lengths and noise",
+		Marks:        []chart.Mark{{Value: a.RadiusNM, Label: "pooled radius " + g4(a.RadiusNM) + " nm"}},
+		Bands:        []chart.Band{{Lo: a.IntervalNM[0], Hi: a.IntervalNM[1], Label: g6(100*a.Coverage) + " % coverage interval of the radius"}},
+	}
+	svg, err := h.SVG(radiiWidth, radiiHeight)
+	add("radii", svg, err)
+	if a.Plan != nil && len(a.Plan.Budget) > 0 {
+		svg, err := budgetBars(a.Plan)
 		add("budget", svg, err)
 	}
 	return out

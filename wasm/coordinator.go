@@ -19,10 +19,13 @@ const progressEvery = 50 * time.Millisecond
 
 // installCoordinator installs globalThis.sizebudgetWorker in the coordinating Web Worker:
 //
-//	attach(ports)                     MessagePorts of the helper workers (none: compute here)
-//	run(kind, id, scenario, options)  kind "plan" or "check"; returns at once, then posts
-//	                                  {type: "progress", id, done, planned} while computing and finally
-//	                                  {type: "result", id, result, charts} or {type: "error", id, error}
+//	attach(ports)                           MessagePorts of the helper workers (none: compute here)
+//	run(kind, id, scenario, options[, file]) kind "plan" or "check"; returns at once, then posts
+//	                                        {type: "progress", id, done, planned} while computing and
+//	                                        finally {type: "result", id, result, charts} or
+//	                                        {type: "error", id, error}
+//	                                        kind "analyze": scenario is the JSON of the analysis
+//	                                        settings and file the track file (a Blob); see analyze
 //
 // options is JSON: {"engine": ""} (forces the track-statistics engine; "" picks the fastest exact one).
 func installCoordinator(g js.Value) {
@@ -40,8 +43,8 @@ func installCoordinator(g js.Value) {
 		if err != nil {
 			return nil, err
 		}
-		if kind != "plan" && kind != "check" {
-			return nil, fmt.Errorf("run: kind must be \"plan\" or \"check\", not %q", kind)
+		if kind != "plan" && kind != "check" && kind != "analyze" {
+			return nil, fmt.Errorf("run: kind must be \"plan\", \"check\" or \"analyze\", not %q", kind)
 		}
 		if len(args) < 2 {
 			return nil, fmt.Errorf("run needs a job id")
@@ -59,11 +62,22 @@ func installCoordinator(g js.Value) {
 				return nil, fmt.Errorf("run: bad options: %v", err)
 			}
 		}
+		var file js.Value
+		if kind == "analyze" {
+			if len(args) < 5 || !args[4].InstanceOf(js.Global().Get("Blob")) {
+				return nil, fmt.Errorf("run: an analysis needs the track file as a Blob or File")
+			}
+			file = args[4]
+		}
 		if !c.busy.CompareAndSwap(false, true) {
 			return nil, fmt.Errorf("run: job %d is refused, another one is in progress (one job at a time per team)", id)
 		}
 		go func() {
 			defer c.busy.Store(false)
+			if kind == "analyze" {
+				c.analyze(id, text, file)
+				return
+			}
 			c.run(kind, id, text, opts.Engine)
 		}()
 		return nil, nil

@@ -25,7 +25,9 @@ import (
 //
 // A record is the JSON of store.Session parsed into a JavaScript object; its scenario is a scenario
 // document with its own "format", read back through uncertainty.ParseScenario, so documents written
-// by an older version are read by the newer engine.
+// by an older version are read by the newer engine. A record may hold an "analysis" (store.Analysis:
+// the summary of a track file, the settings and the result); records written before analyses
+// existed have none, so the schema version did not change for it.
 const (
 	dbName        = "sizebudget"
 	dbVersion     = 2
@@ -85,6 +87,7 @@ type record struct {
 	Created  time.Time       `json:"created"`
 	Modified time.Time       `json:"modified"`
 	Scenario json.RawMessage `json:"scenario"`
+	Analysis json.RawMessage `json:"analysis,omitempty"`
 }
 
 func toJS(v any) (js.Value, error) {
@@ -105,7 +108,14 @@ func fromRecord(v js.Value) (store.Session, error) {
 	if err != nil {
 		return store.Session{}, fmt.Errorf("stored session %q: %w", r.ID, err)
 	}
-	return store.Session{ID: r.ID, Name: r.Name, Note: r.Note, Created: r.Created, Modified: r.Modified, Scenario: sc}, nil
+	s := store.Session{ID: r.ID, Name: r.Name, Note: r.Note, Created: r.Created, Modified: r.Modified, Scenario: sc}
+	if len(r.Analysis) > 0 && string(r.Analysis) != "null" {
+		// An analysis this build cannot read (written by a newer one, say) leaves the session usable.
+		if s.Analysis, err = store.ParseAnalysis(r.Analysis); err != nil {
+			js.Global().Get("console").Call("warn", fmt.Sprintf("sizebudget: stored session %q: its analysis is left out: %v", r.ID, err))
+		}
+	}
+	return s, nil
 }
 
 func (s *idbStore) objectStore(mode idb.TransactionMode, name string) (*idb.Transaction, *idb.ObjectStore, error) {
@@ -179,7 +189,13 @@ func (s *idbStore) Put(ctx context.Context, sessions ...store.Session) error {
 		if err != nil {
 			return err
 		}
-		v, err := toJS(record{ID: sess.ID, Name: sess.Name, Note: sess.Note, Created: sess.Created, Modified: sess.Modified, Scenario: doc})
+		rec := record{ID: sess.ID, Name: sess.Name, Note: sess.Note, Created: sess.Created, Modified: sess.Modified, Scenario: doc}
+		if sess.Analysis != nil {
+			if rec.Analysis, err = json.Marshal(sess.Analysis); err != nil {
+				return err
+			}
+		}
+		v, err := toJS(rec)
 		if err != nil {
 			return err
 		}

@@ -20,9 +20,10 @@ type page struct {
 	problem string // why the in-memory fallback is used
 }
 
-// installPage installs globalThis.sizebudgetCore for site/static/api.js: demo and validate return at
-// once; open, the session functions, export, import and the draft return Promises. Scenario
-// documents, sessions and reports travel as JSON text.
+// installPage installs globalThis.sizebudgetCore for site/static/api.js: demo, validate,
+// validateAnalysis and analysisCharts return at once; open, the session functions, export, import and
+// the draft return Promises. Scenario documents, analysis settings, sessions and reports travel as
+// JSON text.
 func installPage(g js.Value) {
 	p := &page{}
 	core := js.Global().Get("Object").New()
@@ -36,6 +37,31 @@ func installPage(g js.Value) {
 		}
 		return validate(text), nil
 	}))
+	set("validateAnalysis", syncFunc(func(args []js.Value) (any, error) {
+		text, err := argString(args, 0, "settings")
+		if err != nil {
+			return nil, err
+		}
+		return validateAnalysis(text), nil
+	}))
+	set("analysisCharts", syncFunc(func(args []js.Value) (any, error) {
+		text, err := argString(args, 0, "analysis")
+		if err != nil {
+			return nil, err
+		}
+		var a uncertainty.Analysis
+		if err := json.Unmarshal([]byte(text), &a); err != nil {
+			return nil, fmt.Errorf("analysisCharts: not the JSON of an analysis: %v", err)
+		}
+		if a.Format != uncertainty.AnalysisFormat {
+			return nil, fmt.Errorf("analysisCharts: format = %q, expected %q", a.Format, uncertainty.AnalysisFormat)
+		}
+		charts := js.Global().Get("Object").New()
+		for name, svg := range analysisCharts(&a) {
+			charts.Set(name, svg)
+		}
+		return charts, nil
+	}))
 	set("open", asyncFunc(func(ctx context.Context, _ []js.Value) (any, error) {
 		if p.shelf == nil {
 			p.open(ctx)
@@ -47,7 +73,11 @@ func installPage(g js.Value) {
 		if err != nil {
 			return nil, err
 		}
-		s, err := sh.Save(ctx, sc, optString(args, 1), optString(args, 2))
+		an, _, err := analysisArg(args, 3)
+		if err != nil {
+			return nil, err
+		}
+		s, err := sh.SaveWith(ctx, sc, an, optString(args, 1), optString(args, 2))
 		if err != nil {
 			return nil, err
 		}
@@ -62,7 +92,16 @@ func installPage(g js.Value) {
 		if err != nil {
 			return nil, err
 		}
-		s, err := sh.Update(ctx, id, sc)
+		an, given, err := analysisArg(args, 2)
+		if err != nil {
+			return nil, err
+		}
+		var s store.Session
+		if given {
+			s, err = sh.UpdateWith(ctx, id, sc, an)
+		} else {
+			s, err = sh.Update(ctx, id, sc)
+		}
 		if err != nil {
 			return nil, err
 		}
@@ -74,15 +113,19 @@ func installPage(g js.Value) {
 			return nil, err
 		}
 		type entry struct {
-			ID       string    `json:"id"`
-			Name     string    `json:"name"`
-			Note     string    `json:"note"`
-			Created  time.Time `json:"created"`
-			Modified time.Time `json:"modified"`
+			ID           string    `json:"id"`
+			Name         string    `json:"name"`
+			Note         string    `json:"note"`
+			Created      time.Time `json:"created"`
+			Modified     time.Time `json:"modified"`
+			AnalysisFile string    `json:"analysis_file,omitempty"` // name of the analysed track file
 		}
 		out := make([]entry, len(ss))
 		for i, s := range ss {
-			out[i] = entry{s.ID, s.Name, s.Note, s.Created, s.Modified}
+			out[i] = entry{s.ID, s.Name, s.Note, s.Created, s.Modified, ""}
+			if s.Analysis != nil {
+				out[i].AnalysisFile = s.Analysis.File.Name
+			}
 		}
 		return jsonText(out)
 	}))
@@ -213,6 +256,47 @@ func scenarioArg(args []js.Value, i int) (uncertainty.Scenario, error) {
 		return uncertainty.Scenario{}, err
 	}
 	return uncertainty.ParseScenario([]byte(text))
+}
+
+// analysisArg reads the optional analysis in args[i]: the JSON text of a store.Analysis, or null to
+// say "none". given is false when the argument is absent or undefined.
+func analysisArg(args []js.Value, i int) (an *store.Analysis, given bool, err error) {
+	if i >= len(args) || args[i].IsUndefined() {
+		return nil, false, nil
+	}
+	if args[i].IsNull() {
+		return nil, true, nil
+	}
+	text, err := argString(args, i, "analysis")
+	if err != nil {
+		return nil, false, err
+	}
+	an, err = store.ParseAnalysis([]byte(text))
+	return an, true, err
+}
+
+// analysisValidation is the reply of validateAnalysis: ok with the settings as the engine reads them,
+// or the first problem with the setting it concerns.
+type analysisValidation struct {
+	OK       bool                    `json:"ok"`
+	Message  string                  `json:"message,omitempty"`
+	Field    string                  `json:"field,omitempty"`
+	Settings *store.AnalysisSettings `json:"settings,omitempty"`
+}
+
+// validateAnalysis checks analysis settings as the engine will, for validation as the user types.
+func validateAnalysis(text string) string {
+	st, err := store.ParseAnalysisSettings([]byte(text))
+	v := analysisValidation{OK: true, Settings: &st}
+	if err != nil {
+		d := describe(err)
+		v = analysisValidation{Message: d.Message, Field: d.Field}
+	}
+	out, err := jsonText(v)
+	if err != nil {
+		return `{"ok":false,"message":` + fmt.Sprintf("%q", err.Error()) + `}`
+	}
+	return out
 }
 
 // validation is the reply of validate: ok, or the first problem with the field it concerns. On
