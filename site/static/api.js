@@ -129,10 +129,17 @@ class Team {
     const job = this.job;
     if (!job || m.id !== job.id) return;
     if (m.type === 'progress') {
-      job.onProgress({ done: m.done, planned: m.planned, fraction: m.planned > 0 ? m.done / m.planned : 0 });
+      if (m.phase === 'read') {
+        job.onProgress({ phase: 'read', bytes: m.bytes, total: m.total, fraction: m.total > 0 ? m.bytes / m.total : 1 });
+      } else {
+        const p = { done: m.done, planned: m.planned, fraction: m.planned > 0 ? m.done / m.planned : 0 };
+        if (m.phase) p.phase = m.phase;
+        job.onProgress(p);
+      }
     } else if (m.type === 'result') {
       this.job = null;
-      const result = JSON.parse(m.result);
+      let result = JSON.parse(m.result);
+      if (job.kind === 'analyze') result = analysisResult(result);
       Object.defineProperty(result, 'charts', { value: m.charts || {}, enumerable: false });
       job.resolve(result);
     } else if (m.type === 'error') {
@@ -141,10 +148,10 @@ class Team {
     }
   }
 
-  run(kind, id, text, options, onProgress) {
+  run(kind, id, text, options, onProgress, file) {
     return new Promise((resolve, reject) => {
-      this.job = { id, resolve, reject, onProgress };
-      this.coordinator.postMessage({ type: 'run', kind, id, scenario: text, options: JSON.stringify(options) });
+      this.job = { id, kind, resolve, reject, onProgress };
+      this.coordinator.postMessage({ type: 'run', kind, id, scenario: text, options: JSON.stringify(options), file });
     });
   }
 
@@ -172,11 +179,40 @@ function getTeam(size) {
   return team;
 }
 
-// run starts a plan or check. Only one runs at a time: starting one cancels the one in progress.
-async function run(kind, scenario, opts = {}) {
+// analysisResult turns the record a finished analysis returns ({file, settings, result, analysed})
+// into the Analysis JSON, with the rest of the record as properties that JSON.stringify leaves out.
+function analysisResult(rec) {
+  const a = rec.result;
+  for (const k of ['file', 'settings', 'analysed']) Object.defineProperty(a, k, { value: rec[k], enumerable: false });
+  Object.defineProperty(a, 'record', { value: rec, enumerable: false });
+  return a;
+}
+
+// record returns the stored form of an analysis ({file, settings, result, analysed}) from what
+// analyze() returned or from a record itself, as JSON text; null and undefined pass through.
+function recordText(analysis) {
+  if (analysis === undefined || analysis === null) return analysis;
+  if (typeof analysis === 'string') return analysis;
+  const rec = analysis.record || analysis;
+  if (!rec.file || !rec.settings || !rec.result || !rec.analysed) {
+    throw new TypeError('sizebudget: an analysis to keep is what analyze() returned, or a record {file, settings, result, analysed}');
+  }
+  return JSON.stringify({ file: rec.file, settings: rec.settings, result: rec.result, analysed: rec.analysed });
+}
+
+// trackBlob returns a track file as a Blob: a File or Blob as it is, text as a File named name.
+function trackBlob(fileOrText, name) {
+  if (typeof Blob !== 'undefined' && fileOrText instanceof Blob) return fileOrText;
+  if (typeof fileOrText === 'string') return new File([fileOrText], name || 'text', { type: 'text/csv' });
+  throw new TypeError('sizebudget: a track file is a File, a Blob or its text');
+}
+
+// run starts a plan, a check or an analysis. Only one runs at a time: starting one cancels the one in
+// progress.
+async function run(kind, scenario, opts = {}, file = undefined) {
   await ready;
   const text = toText(scenario);
-  const v = JSON.parse(callSync('validate', text));
+  const v = JSON.parse(callSync(kind === 'analyze' ? 'validateAnalysis' : 'validate', text));
   if (!v.ok) throw errorFrom(v);
   if (current) current.cancel();
   const size = opts.workers ? Math.max(1, Math.min(MAX_WORKERS, opts.workers | 0)) : defaultWorkers();
@@ -208,7 +244,7 @@ async function run(kind, scenario, opts = {}) {
     if (cancelled) throw abortError();
     const started = performance.now();
     const onProgress = typeof opts.onProgress === 'function' ? opts.onProgress : () => {};
-    const result = await t.run(kind, ++jobs, text, { engine: opts.engine || '' }, onProgress);
+    const result = await t.run(kind, ++jobs, text, { engine: opts.engine || '' }, onProgress, file);
     Object.defineProperty(result, 'elapsed_ms', { value: performance.now() - started, enumerable: false });
     return result;
   } catch (e) {
@@ -253,17 +289,26 @@ export const sizebudget = {
   },
   plan: (scenario, opts) => run('plan', scenario, opts),
   check: (scenario, opts) => run('check', scenario, opts),
+  analyze: async (fileOrText, settings, opts = {}) => run('analyze', settings, opts, trackBlob(fileOrText, opts.name)),
+  validateAnalysis(settings) {
+    if (!core) throw new Error('sizebudget: not ready yet; await sizebudget.ready');
+    return JSON.parse(callSync('validateAnalysis', toText(settings)));
+  },
+  analysisCharts(result) {
+    if (!core) throw new Error('sizebudget: not ready yet; await sizebudget.ready');
+    return { ...callSync('analysisCharts', typeof result === 'string' ? result : JSON.stringify(result)) };
+  },
   cancel() {
     if (current) current.cancel();
   },
   sessions: {
-    save: async (scenario, name = '', note = '') => {
+    save: async (scenario, name = '', note = '', analysis = undefined) => {
       await ready;
-      return (await parse(core.save(toText(scenario), name, note))).id;
+      return (await parse(core.save(toText(scenario), name, note, recordText(analysis)))).id;
     },
-    update: async (id, scenario) => {
+    update: async (id, scenario, analysis = undefined) => {
       await ready;
-      return parse(core.update(id, toText(scenario)));
+      return parse(core.update(id, toText(scenario), recordText(analysis)));
     },
     list: async (query = '') => {
       await ready;

@@ -1,10 +1,12 @@
 // The page: builds the settings form from fields.js, validates as you type with the engine's own
-// messages, autosaves the draft, runs plans and checks in the workers, and wires the tabs.
+// messages, autosaves the draft, runs plans and checks in the workers, and wires the tabs and the
+// Tracks panel (analysis.js).
 
 import { sizebudget } from './api.js';
 import { groups, fields, byKey, aliases, scenarioText, stateFromScenario, fmt } from './fields.js';
 import { el, renderPlan, renderCheck } from './results.js';
 import { initSessions } from './sessions.js';
+import { initAnalysis } from './analysis.js';
 
 const $ = (id) => document.getElementById(id);
 const DRAFT_FORMAT = 'sizebudget/draft/1';
@@ -14,6 +16,7 @@ let openSession = null; // {id, name} of the session the form came from
 let sessions = null;
 let restoring = false;
 let readyText = ''; // the status once the engine is ready
+let analysis = null; // the Tracks panel
 
 // ---- status and toast ---------------------------------------------------------------------------
 
@@ -219,7 +222,7 @@ function scheduleDraft() {
 
 function saveDraft() {
   clearTimeout(draftTimer);
-  const draft = { format: DRAFT_FORMAT, state, open: openSession, saved: new Date().toISOString() };
+  const draft = { format: DRAFT_FORMAT, state, open: openSession, analysis: analysis ? analysis.draft() : null, saved: new Date().toISOString() };
   return sizebudget.draft.save(JSON.stringify(draft)).catch((e) => console.warn('sizebudget: draft not saved:', e.message));
 }
 
@@ -231,6 +234,8 @@ async function loadDraft() {
     if (d.format !== DRAFT_FORMAT || !d.state) return false;
     writeForm(d.state);
     setOpen(d.open || null);
+    if (d.analysis) analysis.restoreDraft(d.analysis);
+    else analysis.reset(sizebudget.demo());
     return true;
   } catch (e) {
     console.warn('sizebudget: draft not read:', e.message);
@@ -252,6 +257,7 @@ function setOpen(s) {
 
 function openInForm(s) {
   writeForm(stateFromScenario(s.scenario));
+  analysis.restore(s.analysis || null, s.name);
   setOpen(s);
   check();
   scheduleDraft();
@@ -342,6 +348,7 @@ function registerServiceWorker() {
 async function start() {
   initTabs();
   buildForm();
+  analysis = initAnalysis({ toast, changed: () => scheduleDraft(), selectTab });
   $('build').textContent = `Version ${sizebudget.version}.`;
   let info;
   try {
@@ -353,7 +360,10 @@ async function start() {
   }
   registerServiceWorker(); // after the engine, so that filling the offline cache does not delay it
   restoring = true;
-  if (!(await loadDraft())) writeForm(stateFromScenario(sizebudget.demo()));
+  if (!(await loadDraft())) {
+    writeForm(stateFromScenario(sizebudget.demo()));
+    analysis.reset(sizebudget.demo());
+  }
   restoring = false;
   check();
   sessions = initSessions({
@@ -362,6 +372,7 @@ async function start() {
       return c.error ? { error: c.error } : { text: c.text };
     },
     open: openInForm,
+    analysis: () => analysis.record(),
     toast,
     openId: () => (openSession ? openSession.id : null),
     setOpen,
@@ -390,5 +401,7 @@ async function start() {
 
 start();
 
-// For tests and power users: whether a computation is running.
-Object.defineProperty(sizebudget, 'busy', { get: () => running });
+// For tests and power users: whether a computation is running, and the analysis the Tracks panel
+// shows (its record {file, settings, result, analysed}, or null).
+Object.defineProperty(sizebudget, 'busy', { get: () => running || (analysis !== null && analysis.busy()) });
+Object.defineProperty(sizebudget, 'shownAnalysis', { get: () => (analysis ? analysis.record() : null) });

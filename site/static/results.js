@@ -1,5 +1,6 @@
-// Rendering of plan and check results into the page. Charts arrive as SVG documents drawn by the
-// engine (package chart); they use presentation attributes only, so they pass the strict CSP.
+// Rendering of plan and check results into the page, and the pieces the Tracks panel shares. Charts
+// arrive as SVG documents drawn by the engine (package chart); they use presentation attributes
+// only, so they pass the strict CSP.
 
 import { fmt } from './fields.js';
 
@@ -33,7 +34,7 @@ const nm = (x, d = 4) => `${fmt(x, d)} nm`;
 const interval = (iv, d = 4) => `${fmt(iv[0], d)} – ${fmt(iv[1], d)} nm`;
 const dof = (v) => (typeof v === 'number' ? fmt(v, 3) : String(v ?? '—'));
 
-function figure(what, value, sub, cls = '') {
+export function figure(what, value, sub, cls = '') {
   return el('div', { class: `figure ${cls}`.trim() },
     el('p', { class: 'what' }, what), el('p', { class: 'value' }, value), sub ? el('p', { class: 'sub' }, sub) : null);
 }
@@ -41,6 +42,20 @@ function figure(what, value, sub, cls = '') {
 function chartBox(charts, name, label, cls = 'chart') {
   if (!charts || !charts[name]) return null;
   return el('figure', { class: cls }, svgNode(charts[name], label));
+}
+
+// budgetTable is the table of an uncertainty budget (the budget of a plan result).
+export function budgetTable(budget) {
+  return el('div', { class: 'table-wrap' }, el('table', {},
+    el('caption', { class: 'visually-hidden' }, 'Uncertainty budget'),
+    el('thead', {}, el('tr', {},
+      el('th', {}, 'Source'), el('th', {}, 'Input'), el('th', { class: 'num' }, 'u(input)'),
+      el('th', { class: 'num' }, 'Sensitivity'), el('th', { class: 'num' }, 'u(r)/r'), el('th', { class: 'num' }, 'Share'),
+      el('th', { class: 'num' }, 'ν'))),
+    el('tbody', {}, budget.map((b) => el('tr', {},
+      el('td', {}, b.source), el('td', {}, b.input || ''), el('td', { class: 'num' }, fmt(b.input_standard_uncertainty, 3)),
+      el('td', { class: 'num' }, fmt(b.sensitivity, 3)), el('td', { class: 'num' }, pc(b.relative_standard_uncertainty)),
+      el('td', { class: 'num' }, pc(b.share)), el('td', { class: 'num' }, b.dof === null ? '∞' : dof(b.dof)))))));
 }
 
 // recommendation describes the planner's answer in words.
@@ -90,16 +105,7 @@ export function renderPlan(box, r) {
       (f.recommended_tracks_at_reachable_frames ? ` At that length, ${f.recommended_tracks_at_reachable_frames} tracks reach the target.` : ''));
   }
 
-  const budget = el('div', { class: 'table-wrap' }, el('table', {},
-    el('caption', { class: 'visually-hidden' }, 'Uncertainty budget'),
-    el('thead', {}, el('tr', {},
-      el('th', {}, 'Source'), el('th', {}, 'Input'), el('th', { class: 'num' }, 'u(input)'),
-      el('th', { class: 'num' }, 'Sensitivity'), el('th', { class: 'num' }, 'u(r)/r'), el('th', { class: 'num' }, 'Share'),
-      el('th', { class: 'num' }, 'ν'))),
-    el('tbody', {}, (r.budget || []).map((b) => el('tr', {},
-      el('td', {}, b.source), el('td', {}, b.input || ''), el('td', { class: 'num' }, fmt(b.input_standard_uncertainty, 3)),
-      el('td', { class: 'num' }, fmt(b.sensitivity, 3)), el('td', { class: 'num' }, pc(b.relative_standard_uncertainty)),
-      el('td', { class: 'num' }, pc(b.share)), el('td', { class: 'num' }, b.dof === null ? '∞' : dof(b.dof)))))));
+  const budget = budgetTable(r.budget || []);
 
   const g = r.gum || {};
   const mc = r.monte_carlo || {};

@@ -1,5 +1,6 @@
-// The Sessions panel: save (name and note), list newest first with a search, open, rename, duplicate,
-// delete with undo, compare two side by side, export all or one, import a file.
+// The Sessions panel: save (name and note; with the analysis the Tracks panel shows), list newest
+// first with a search, open, rename, duplicate, delete with undo, compare two side by side, export
+// all or one, import a file.
 
 import { sizebudget } from './api.js';
 import { el } from './results.js';
@@ -28,7 +29,9 @@ export function download(text, name) {
 }
 
 // initSessions wires the panel. app supplies:
-//   scenarioText() → {text} or {error}; open(session) fills the form; toast(text, action, fn);
+//   scenarioText() → {text} or {error}; open(session) fills the form (and the Tracks panel);
+//   analysis() → the analysis shown in the Tracks panel (kept with a saved session) or null;
+//   toast(text, action, fn);
 //   openId() / setOpen(session|null): the session the form came from.
 export function initSessions(app) {
   const list = $('session-list');
@@ -85,7 +88,8 @@ export function initSessions(app) {
         el('label', { class: 'pick', for: `pick-${s.id}` }, box),
         el('div', {},
           el('div', { class: 'name' }, s.name),
-          el('div', { class: 'meta' }, `changed ${when(s.modified)}${s.created !== s.modified ? ` · created ${when(s.created)}` : ''}`))),
+          el('div', { class: 'meta' }, `changed ${when(s.modified)}${s.created !== s.modified ? ` · created ${when(s.created)}` : ''}`),
+          s.analysis_file ? el('div', { class: 'meta' }, `with the analysis of ${s.analysis_file}`) : null)),
       s.note ? el('p', { class: 'note' }, s.note) : null,
       actions,
     ].filter(Boolean));
@@ -210,12 +214,12 @@ export function initSessions(app) {
       return;
     }
     try {
-      const id = await sizebudget.sessions.save(st.text, $('save-name').value, $('save-note').value);
+      const id = await sizebudget.sessions.save(st.text, $('save-name').value, $('save-note').value, app.analysis());
       const s = await sizebudget.sessions.get(id);
       app.setOpen(s);
       $('save-name').value = '';
       $('save-note').value = '';
-      say(`Saved “${s.name}”.`, 'good');
+      say(`Saved “${s.name}”${s.analysis ? ` with the analysis of ${s.analysis.file.name}` : ''}.`, 'good');
       refresh();
     } catch (err) {
       say(`Not saved: ${err.message}`, 'bad');
@@ -231,9 +235,9 @@ export function initSessions(app) {
       return;
     }
     try {
-      const s = await sizebudget.sessions.update(id, st.text);
+      const s = await sizebudget.sessions.update(id, st.text, app.analysis());
       app.setOpen(s);
-      say(`Updated “${s.name}”.`, 'good');
+      say(`Updated “${s.name}”${s.analysis ? ` with the analysis of ${s.analysis.file.name}` : ''}.`, 'good');
       refresh();
     } catch (err) {
       say(`Not updated: ${err.message}`, 'bad');

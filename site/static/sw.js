@@ -17,6 +17,7 @@ const FILES = [
   'fields.js',
   'results.js',
   'sessions.js',
+  'analysis.js',
   'worker.js',
   'wasm_exec.js',
   'main.wasm',

@@ -1,11 +1,12 @@
 // A Web Worker with its own instance of the sizebudget engine (main.wasm, compiled once by the page
 // and sent here). Its role comes with the first message:
-//   coordinator — runs plans and checks for the page (and hands Monte Carlo chunks to the helpers
-//                 whose MessagePorts it is given);
+//   coordinator — runs plans, checks and analyses of track files for the page (and hands Monte
+//                 Carlo chunks to the helpers whose MessagePorts it is given);
 //   helper      — computes the chunks it is sent on its MessagePort.
 // Messages: page → worker {type: 'init', role, module, ports | port}, {type: 'run', kind, id,
-// scenario, options}; worker → page {type: 'ready'}, {type: 'fatal', message}, and from the
-// coordinator {type: 'progress' | 'result' | 'error', id, ...} (see wasm/coordinator.go).
+// scenario, options, file} (file: the track file of an analysis, a Blob, read here in chunks);
+// worker → page {type: 'ready'}, {type: 'fatal', message}, and from the coordinator
+// {type: 'progress' | 'result' | 'error', id, ...} (see wasm/coordinator.go and wasm/analysis.go).
 'use strict';
 
 /* global Go */
@@ -33,7 +34,7 @@ self.onmessage = async (e) => {
       }
       self.postMessage({ type: 'ready' });
     } else if (m.type === 'run') {
-      const r = engine.run(m.kind, m.id, m.scenario, m.options || '');
+      const r = engine.run(m.kind, m.id, m.scenario, m.options || '', m.file);
       if (r && r.error) {
         self.postMessage({ type: 'error', id: m.id, error: { message: r.error.message, field: r.error.field || '' } });
       }
