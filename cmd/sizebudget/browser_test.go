@@ -570,25 +570,11 @@ func TestBrowserApp(t *testing.T) {
 		a := newBrowser(t, chrome, 360, 740)
 		a.do(t, 10*time.Second, chromedp.EmulateViewport(360, 740))
 		a.open(t, srv.url())
-		for _, tab := range []string{"tab-settings", "tab-results", "tab-review", "tab-sessions"} {
+		for _, tab := range []string{"tab-settings", "tab-results", "tab-review", "tab-analysis", "tab-sessions"} {
 			a.do(t, 10*time.Second, chromedp.Click(chromedp.CSS("#"+tab)))
 			// Every control has a label; every target is at least 44 px both ways (checkboxes count
 			// by their label); nothing is wider than a 360 px screen.
-			problems := eval[[]string](t, a, `(() => {
-				const out = [];
-				const shown = (e) => e.getClientRects().length > 0 && getComputedStyle(e).visibility !== 'hidden';
-				for (const e of document.querySelectorAll('input, select, textarea')) {
-					if (!shown(e) && e.type !== 'file') continue;
-					const labelled = (e.labels && e.labels.length) || e.getAttribute('aria-label');
-					if (!labelled) out.push('no label: ' + (e.id || e.name));
-				}
-				for (const e of document.querySelectorAll('button, [role=tab], label.file-button, label.check, label.pick, input:not([type=checkbox]):not([type=file]), select')) {
-					if (!shown(e)) continue;
-					const r = e.getBoundingClientRect();
-					if (r.height < 44 || r.width < 44) out.push('small target: ' + (e.id || e.textContent.trim().slice(0, 30)) + ' ' + Math.round(r.width) + 'x' + Math.round(r.height));
-				}
-				if (document.documentElement.scrollWidth > window.innerWidth) out.push('page wider than the screen: ' + document.documentElement.scrollWidth);
-				return out; })()`)
+			problems := eval[[]string](t, a, layoutProblems)
 			for _, p := range problems {
 				t.Errorf("%s: %s", tab, p)
 			}
@@ -657,7 +643,8 @@ func BenchmarkBrowserPlan(b *testing.B) {
 	}
 }
 
-// screenshots saves the main screens at phone (390×844) and desktop (1280×800) sizes.
+// screenshots saves the main screens at phone (390×844) and desktop (1280×800) sizes; the analysis
+// screen shows the invented demo track file.
 func screenshots(t *testing.T, chrome, u, root string) {
 	dir := filepath.Join(root, "docs", "screens")
 	if err := os.MkdirAll(dir, 0o755); err != nil {
@@ -703,6 +690,16 @@ func screenshots(t *testing.T, chrome, u, root string) {
 		b.waitFor(t, `document.querySelectorAll('#session-list .session').length === 2`, 10*time.Second)
 		eval[bool](t, b, `(window.scrollTo(0, 0), true)`)
 		shot("sessions")
+		b.do(t, 10*time.Second, chromedp.Click(chromedp.CSS("#tab-analysis")),
+			chromedp.SetUploadFiles(chromedp.CSS("#track-file"), []string{filepath.Join(root, "testdata", "tracks", "demo.csv")}))
+		b.waitFor(t, `sizebudget.shownAnalysis !== null && !sizebudget.busy`, 90*time.Second)
+		// The summary and the figures on a desktop; the figures on a phone.
+		target := "#analysis"
+		if w < 960 {
+			target = "#analysis .headline"
+		}
+		eval[bool](t, b, fmt.Sprintf(`(window.scrollTo(0, document.querySelector(%q).getBoundingClientRect().top + window.scrollY - 90), true)`, target))
+		shot("analysis")
 	}
 }
 
