@@ -8,6 +8,12 @@ import (
 )
 
 // Engines that sample the track statistics of a trial.
+//
+// EngineExact is opt-in only (PlanOptions.Engine; neither the command line nor the browser offers
+// it): its law is built from many Imhof inversions, and for the known-noise estimator with σ > 0 on
+// long tracks and many tracks (e.g. 162 positions × 180 tracks, 2-D, σ = 10 nm) building it takes
+// minutes, where the spectral Monte Carlo takes a second. Until that is bounded, plans default to the
+// spectral or direct Monte Carlo.
 const (
 	EngineDirect   = "direct"   // simulate every track, then estimate (any estimator, drift removal)
 	EngineSpectral = "spectral" // exact DST-I sampler: one gamma draw per mode (cve, known-noise; no drift removal)
