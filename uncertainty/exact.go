@@ -5,8 +5,6 @@ import (
 	"math"
 	"math/rand/v2"
 
-	"gonum.org/v1/gonum/stat/distuv"
-
 	"sizebudget/core"
 )
 
@@ -183,9 +181,9 @@ func probit(lo, up float64) float64 {
 	case up <= 0:
 		z = exactProbitCap
 	case lo < 0.5:
-		z = distuv.UnitNormal.Quantile(lo)
+		z = normalQuantile(lo)
 	default:
-		z = -distuv.UnitNormal.Quantile(up)
+		z = -normalQuantile(up)
 	}
 	return math.Max(-exactProbitCap, math.Min(exactProbitCap, z))
 }
@@ -256,7 +254,7 @@ func truncatedNormalRule(n int, reach float64) [][2]float64 {
 	rule := make([][2]float64, n)
 	sum := 0.0
 	for i := range x {
-		rule[i] = [2]float64{x[i], w[i] * distuv.UnitNormal.Prob(x[i])}
+		rule[i] = [2]float64{x[i], w[i] * normalPDF(x[i])}
 		sum += rule[i][1]
 	}
 	for i := range rule {
@@ -270,11 +268,11 @@ func truncatedNormalRule(n int, reach float64) [][2]float64 {
 // masses Φ(−5) at ±5; the weights are normalised to sum to 1.
 func clampedNormalRule(n int) [][2]float64 {
 	x, w := legendreRule(n, -5, 5)
-	tail := distuv.UnitNormal.CDF(-5)
+	tail := normalCDF(-5)
 	rule := [][2]float64{{-5, tail}, {5, tail}}
 	sum := 2 * tail
 	for i := range x {
-		wi := w[i] * distuv.UnitNormal.Prob(x[i])
+		wi := w[i] * normalPDF(x[i])
 		rule = append(rule, [2]float64{x[i], wi})
 		sum += wi
 	}
@@ -380,7 +378,7 @@ func (l *ExactLaw) buildXiTable(u *setup) error {
 		eLo, eHi = math.Min(eLo, n.e), math.Max(eHi, n.e)
 	}
 	width := math.Sqrt(u.trackRelVar(u.groups) + 4*u.uPix*u.uPix)
-	zCut := distuv.UnitNormal.Quantile(exactTailCut)
+	zCut := normalQuantile(exactTailCut)
 	l.xiLo, l.xiHi = math.Inf(1), math.Inf(-1)
 	for _, e := range []float64{eLo, (eLo + eHi) / 2, eHi} {
 		a := l.condLaw(e)
@@ -615,7 +613,7 @@ func (l *ExactLaw) Quantile(p float64) float64 {
 	if !(p > 0 && p < 1) {
 		panic("uncertainty: ExactLaw.Quantile: p must be in (0, 1)")
 	}
-	z := distuv.UnitNormal.Quantile(p)
+	z := normalQuantile(p)
 	guess := l.inv.at(math.Max(-l.zMax, math.Min(l.zMax, z)))
 	h := 1e-3 * l.std
 	q, err := solveIncreasing(l.cdfProbit, z, guess-h, guess+h, 1e-12)
@@ -643,9 +641,9 @@ func (l *ExactLaw) Intervals(p float64) (symmetric, shortest [2]float64) {
 	mustCoverage(p)
 	symmetric = [2]float64{l.Quantile((1 - p) / 2), l.Quantile((1 + p) / 2)}
 	length := func(a float64) float64 {
-		return l.inv.at(distuv.UnitNormal.Quantile(a+p)) - l.inv.at(distuv.UnitNormal.Quantile(a))
+		return l.inv.at(normalQuantile(a+p)) - l.inv.at(normalQuantile(a))
 	}
-	edge := distuv.UnitNormal.CDF(-l.zMax)
+	edge := normalCDF(-l.zMax)
 	a, b := edge, 1-p-edge
 	if !(b > a) {
 		return symmetric, symmetric
@@ -723,5 +721,5 @@ func (l *ExactLaw) Density(q float64) float64 {
 		return 0
 	}
 	g := l.fwd.at(q)
-	return distuv.UnitNormal.Prob(g) * l.dfwd.at(q)
+	return normalPDF(g) * l.dfwd.at(q)
 }
