@@ -82,7 +82,8 @@ func (s Scenario) lengthGroups() []LengthGroup {
 	return []LengthGroup{{Frames: s.Frames, Count: s.Tracks}}
 }
 
-// Demo returns the invented demonstration scenario: 50 nm beads in water at 25 °C, 30 frames/s.
+// Demo returns the invented demonstration scenario: beads of 50 nm radius (100 nm diameter) in water at
+// 25 °C, 30 frames/s.
 // INVENTED: it describes no real sample, laboratory or instrument.
 func Demo() Scenario {
 	return Scenario{
