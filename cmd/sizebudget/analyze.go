@@ -11,7 +11,7 @@ import (
 	"slices"
 	"strings"
 
-	"sizebudget/chart"
+	"sizebudget/figures"
 	"sizebudget/trackfile"
 	"sizebudget/uncertainty"
 )
@@ -182,7 +182,7 @@ func analyzeCommand(ctx context.Context, args []string, stdout, stderr io.Writer
 		Gaps: st.Gaps, Dropped: st.Dropped, Unit: st.Unit, Delimiter: st.Delimiter, Order: ord.String(), MinPositions: *minPos,
 		Ignored: nonNil(st.Ignored), Notes: nonNil(st.Notes)}}
 	if *svg != "" {
-		doc, err := radiiSVG(a)
+		doc, err := figures.Radii(a)
 		if err != nil {
 			return fmt.Errorf("chart %s: %w", *svg, err)
 		}
@@ -329,31 +329,4 @@ func writeAnalysisReport(w io.Writer, rep analyzeReport) error {
 		return err
 	}
 	return writeWarnings(w, a.Warnings)
-}
-
-// radiiSVG draws the histogram of the per-track radii with the monodisperse reference overlaid (at
-// the bin centres), the pooled radius marked and its coverage interval shaded.
-func radiiSVG(a *uncertainty.Analysis) (string, error) {
-	rd := a.Radii
-	over := make([]chart.Point, len(rd.Monodisperse))
-	for i, m := range rd.Monodisperse {
-		over[i] = chart.Point{X: (rd.EdgesNM[i] + rd.EdgesNM[i+1]) / 2, Y: m}
-	}
-	outside := rd.Below + rd.Above + rd.NonPositive
-	title := fmt.Sprintf("Radii of %d single tracks", a.TracksUsed)
-	if outside > 0 {
-		title += fmt.Sprintf(" (%d outside the axis)", outside)
-	}
-	h := chart.Histogram{
-		Title:        title,
-		XLabel:       "hydrodynamic radius of one track (nm)",
-		YLabel:       "tracks",
-		Edges:        rd.EdgesNM,
-		Counts:       rd.Counts,
-		Overlay:      over,
-		OverlayLabel: "a monodisperse sample, same track lengths and noise",
-		Marks:        []chart.Mark{{Value: a.RadiusNM, Label: "pooled radius " + short(a.RadiusNM) + " nm"}},
-		Bands:        []chart.Band{{Lo: a.IntervalNM[0], Hi: a.IntervalNM[1], Label: formatNumber(100*a.Coverage) + " % coverage interval of the radius"}},
-	}
-	return h.SVG(720, 480)
 }

@@ -17,6 +17,7 @@ import (
 	"github.com/chromedp/chromedp"
 
 	"sizebudget/core"
+	"sizebudget/figures"
 	"sizebudget/trackfile"
 	"sizebudget/uncertainty"
 )
@@ -149,7 +150,7 @@ func TestBrowserAnalysis(t *testing.T) {
 			t.Errorf("%d charts in the analysis; want 2 (radius histogram, budget bars)", n)
 		}
 		// The radius histogram is the document sizebudget analyze -svg writes.
-		cli, err := radiiSVG(native)
+		cli, err := figures.Radii(native)
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -10,7 +10,7 @@ import (
 	"strconv"
 	"strings"
 
-	"sizebudget/chart"
+	"sizebudget/figures"
 	"sizebudget/uncertainty"
 )
 
@@ -104,10 +104,10 @@ func planCommand(ctx context.Context, args []string, stdout, stderr io.Writer) e
 	}
 	charts := map[string]func(*uncertainty.PlanResult) (string, error){}
 	if *svg != "" {
-		charts[*svg] = histogramSVG
+		charts[*svg] = figures.PlanHistogram
 	}
 	if *curveSVG != "" {
-		charts[*curveSVG] = curveChartSVG
+		charts[*curveSVG] = figures.PlanCurve
 	}
 	if err := writeCharts(res, charts); err != nil {
 		return err
@@ -143,53 +143,6 @@ func writeCharts(res *uncertainty.PlanResult, charts map[string]func(*uncertaint
 		}
 	}
 	return nil
-}
-
-// histogramSVG draws the histogram of the Monte Carlo radius values, with the probabilistically
-// symmetric coverage interval shaded and the nominal radius and the GUM interval marked.
-func histogramSVG(res *uncertainty.PlanResult) (string, error) {
-	pct := formatNumber(100 * res.Coverage)
-	h := chart.Histogram{
-		Title:  fmt.Sprintf("Monte Carlo distribution of the radius (%d trials)", res.MonteCarlo.Trials),
-		XLabel: "hydrodynamic radius (nm)",
-		YLabel: "trials",
-		Edges:  res.Histogram.EdgesNM,
-		Counts: res.Histogram.Counts,
-		Bands:  []chart.Band{{Lo: res.IntervalNM[0], Hi: res.IntervalNM[1], Label: pct + " % coverage interval (Monte Carlo)"}},
-		Marks: []chart.Mark{
-			{Value: res.RadiusNM, Label: "nominal radius"},
-			{Value: res.GUM.IntervalNM[0], Label: "GUM interval"},
-			{Value: res.GUM.IntervalNM[1]},
-		},
-	}
-	return h.SVG(720, 480)
-}
-
-// curveChartSVG draws the analytic relative expanded uncertainty against frames per track (log
-// axis), with the target and the planned and recommended numbers of frames.
-func curveChartSVG(res *uncertainty.PlanResult) (string, error) {
-	if len(res.Curve) == 0 {
-		return "", errors.New("no frames curve: the planner did not run (the scenario gives recorded track lengths)")
-	}
-	pts := make([]chart.Point, len(res.Curve))
-	for i, p := range res.Curve {
-		pts[i] = chart.Point{X: float64(p.Frames), Y: 100 * p.RelExpanded}
-	}
-	c := chart.Curve{
-		Title:  fmt.Sprintf("Relative expanded uncertainty with %d tracks", res.Scenario.Tracks),
-		XLabel: "positions per track",
-		YLabel: "U/r (%)",
-		LogX:   true,
-		Series: []chart.Series{{Name: "GUM model", Points: pts}},
-		VLines: []chart.Mark{{Value: float64(res.Scenario.Frames), Label: fmt.Sprintf("planned: %d", res.Scenario.Frames)}},
-	}
-	if res.TargetRelU > 0 {
-		c.HLines = []chart.Mark{{Value: 100 * res.TargetRelU, Label: "target " + formatNumber(100*res.TargetRelU) + " %"}}
-	}
-	if n := res.RecommendedMinFrames; n != nil {
-		c.VLines = append(c.VLines, chart.Mark{Value: float64(*n), Label: fmt.Sprintf("recommended: %d", *n)})
-	}
-	return c.SVG(720, 480)
 }
 
 // tracksText writes the tracks of s as tracks × positions, or as the groups of its track lengths.
