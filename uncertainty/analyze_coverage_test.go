@@ -17,17 +17,8 @@ import (
 // analyst's length scale off by the calibration error, with a common drift (m/s per axis, nil = none).
 func recordedExperiment(t *testing.T, s Scenario, rNM, sigma float64, drift []float64, lengths []int, r *rand.Rand) []core.Track {
 	t.Helper()
-	u, err := newSetup(s)
-	if err != nil {
-		t.Fatal(err)
-	}
-	T := u.drawTemperature(r)
-	eta, err := u.medium.Viscosity(T)
-	if err != nil {
-		t.Fatal(err)
-	}
-	eta *= 1 + u.uEta*r.NormFloat64()
-	scale := 1 + u.uPix*r.NormFloat64()
+	_, T, eta, delta := drawTruth(t, s, r)
+	scale := 1 + delta
 	rec := core.Recording{D: core.Diffusion(T, eta, rNM*1e-9), Dims: s.Dims, Interval: s.FrameIntervalS, Exposure: s.ExposureS, Sigma: sigma, Drift: drift}
 	tracks := simulateTracks(r, rec, lengths)
 	for _, tr := range tracks {

@@ -31,23 +31,30 @@ func binomialRegion(n int, p, alpha float64) (lo, hi int) {
 	return lo, hi
 }
 
+// drawTruth draws, for one simulated experiment, what the scenario's distributions say the truth
+// may be: the temperature (K), the viscosity with its model error (Pa·s) and the relative error of
+// the length scale. It also returns the setup of s.
+func drawTruth(t *testing.T, s Scenario, r *rand.Rand) (u *setup, T, eta, delta float64) {
+	t.Helper()
+	u, err := newSetup(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	T = u.drawTemperature(r)
+	if eta, err = u.medium.Viscosity(T); err != nil {
+		t.Fatal(err)
+	}
+	eta *= 1 + u.uEta*r.NormFloat64()
+	return u, T, eta, u.uPix * r.NormFloat64()
+}
+
 // experiment plays one measurement as it really happens and returns the analyst's radius estimate (nm)
 // and the true radius (nm): the true temperature, viscosity error and pixel error are drawn from the
 // scenario's distributions, the tracks are simulated directly at the true D, and the estimate is
 // converted with the nominal temperature and viscosity.
 func experiment(t *testing.T, s Scenario, r *rand.Rand) (estimate, truth float64) {
 	t.Helper()
-	u, err := newSetup(s)
-	if err != nil {
-		t.Fatal(err)
-	}
-	T := u.drawTemperature(r)
-	eta, err := u.medium.Viscosity(T)
-	if err != nil {
-		t.Fatal(err)
-	}
-	eta *= 1 + u.uEta*r.NormFloat64()
-	delta := u.uPix * r.NormFloat64()
+	u, T, eta, delta := drawTruth(t, s, r)
 	D := core.Boltzmann * T / (6 * math.Pi * eta * u.r0)
 	rec := core.Recording{D: D, Dims: u.dims, Interval: u.dt, Exposure: u.tE, Sigma: math.Sqrt(u.s2)}
 	tracks := make([]core.Track, u.tracks)
@@ -55,6 +62,7 @@ func experiment(t *testing.T, s Scenario, r *rand.Rand) (estimate, truth float64
 		tracks[i] = core.Simulate(randSource{r}, rec, u.frames)
 	}
 	var e core.Estimate
+	var err error
 	switch s.Estimator {
 	case "known-noise":
 		e, err = core.KnownNoise(tracks, u.dt, u.blur, u.s2, false)
