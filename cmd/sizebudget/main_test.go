@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"errors"
 	"flag"
+	"fmt"
 	"io"
 	"math"
 	"os"
@@ -12,6 +13,7 @@ import (
 	"regexp"
 	"strconv"
 	"strings"
+	"sync"
 	"testing"
 
 	"sizebudget/core"
@@ -236,20 +238,58 @@ func TestWriteJSONRefusesNaN(t *testing.T) {
 	}
 }
 
-// TestBinaryExitCodes builds the command and runs it as a process: the exit status must be 2 for bad
-// usage and 1 for a value out of range, and nothing on stderr may look like a Go panic.
-func TestBinaryExitCodes(t *testing.T) {
+// builtBinary builds the command once per test run (skipped with -short or without a go command)
+// and returns the path of the binary.
+func builtBinary(t *testing.T) string {
+	t.Helper()
 	if testing.Short() {
 		t.Skip("builds the binary")
 	}
-	goTool, err := exec.LookPath("go")
-	if err != nil {
+	binOnce.Do(func() {
+		goTool, err := exec.LookPath("go")
+		if err != nil {
+			binErr = errSkipBuild
+			return
+		}
+		dir, err := os.MkdirTemp("", "sizebudget-test-")
+		if err != nil {
+			binErr = err
+			return
+		}
+		binPath = filepath.Join(dir, "sizebudget")
+		if out, err := exec.Command(goTool, "build", "-o", binPath, ".").CombinedOutput(); err != nil {
+			binErr = fmt.Errorf("go build: %v\n%s", err, out)
+		}
+	})
+	if binErr == errSkipBuild {
 		t.Skip("no go command in PATH")
 	}
-	bin := filepath.Join(t.TempDir(), "sizebudget")
-	if out, err := exec.Command(goTool, "build", "-o", bin, ".").CombinedOutput(); err != nil {
-		t.Fatalf("go build: %v\n%s", err, out)
+	if binErr != nil {
+		t.Fatal(binErr)
 	}
+	return binPath
+}
+
+// TestMain removes the binary builtBinary made, if any.
+func TestMain(m *testing.M) {
+	code := m.Run()
+	if binPath != "" {
+		os.RemoveAll(filepath.Dir(binPath))
+	}
+	os.Exit(code)
+}
+
+var (
+	binOnce      sync.Once
+	binPath      string
+	binErr       error
+	errSkipBuild = errors.New("no go command")
+)
+
+// TestBinaryExitCodes builds the command and runs it as a process: the exit status must be 2 for bad
+// usage and 1 for a value out of range, and nothing on stderr may look like a Go panic.
+func TestBinaryExitCodes(t *testing.T) {
+	bin := builtBinary(t)
 	for _, c := range []struct {
 		args   []string
 		status int

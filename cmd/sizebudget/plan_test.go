@@ -380,17 +380,7 @@ func TestPlanInterrupted(t *testing.T) {
 // track, about a minute) and interrupts it as Ctrl-C would: it must stop, exit with status 1 and say
 // so on one line, with nothing on stdout.
 func TestPlanBinaryInterrupt(t *testing.T) {
-	if testing.Short() {
-		t.Skip("builds the binary")
-	}
-	goTool, err := exec.LookPath("go")
-	if err != nil {
-		t.Skip("no go command in PATH")
-	}
-	bin := filepath.Join(t.TempDir(), "sizebudget")
-	if out, err := exec.Command(goTool, "build", "-o", bin, ".").CombinedOutput(); err != nil {
-		t.Fatalf("go build: %v\n%s", err, out)
-	}
+	bin := builtBinary(t)
 	cmd := exec.Command(bin, "plan", "-frames", "1000", "-target", "0", "-json")
 	var out, errb bytes.Buffer
 	cmd.Stdout, cmd.Stderr = &out, &errb
@@ -401,7 +391,7 @@ func TestPlanBinaryInterrupt(t *testing.T) {
 	if err := cmd.Process.Signal(os.Interrupt); err != nil {
 		t.Fatal(err)
 	}
-	err = cmd.Wait()
+	err := cmd.Wait()
 	var exit *exec.ExitError
 	if !errors.As(err, &exit) || exit.ExitCode() != 1 || out.Len() != 0 ||
 		errb.String() != "sizebudget: interrupted: the Monte Carlo was stopped before it finished; nothing was written\n" {
